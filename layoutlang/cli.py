@@ -1,0 +1,109 @@
+"""The command line: `layoutlang run FILE` and `layoutlang check FILE...`.
+
+Exit status: 0 every expectation holds, 1 some fail, 2 usage or script error. Errors are
+printed as the messages of `LayoutError`; a Python traceback is never shown to a user.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from typing import Sequence
+
+from . import __version__
+from .errors import LayoutError
+
+__all__ = ["main"]
+
+EXIT_OK, EXIT_FAILED, EXIT_ERROR = 0, 1, 2
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="layoutlang",
+        description="Describe optical layouts in plain words and check them.",
+    )
+    parser.add_argument("--version", action="version", version=f"layoutlang {__version__}")
+    commands = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    run = commands.add_parser("run", help="print the layout, its first-order report and checks")
+    run.add_argument("file", help="a layout script (.lay)")
+    run.add_argument("--json", action="store_true", help="machine-readable output")
+    check = commands.add_parser("check", help="check the expectations of one or more scripts")
+    check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
+    check.add_argument("--json", action="store_true", help="machine-readable output")
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        if args.command == "run":
+            return _run(args.file, args.json)
+        return _check(args.files, args.json)
+    except KeyboardInterrupt:
+        return 130
+    except BrokenPipeError:
+        return EXIT_OK
+
+
+def _evaluate(path: str):
+    from .checks import check_program
+    from .engines.firstorder import first_order
+    from .interpret.interpreter import load_file
+
+    program = load_file(path)
+    results = first_order(program.system)
+    return program, results, check_program(program, results)
+
+
+def _run(path: str, as_json: bool) -> int:
+    try:
+        program, results, checked = _evaluate(path)
+    except LayoutError as error:
+        print(error, file=sys.stderr)
+        return EXIT_ERROR
+    if as_json:
+        from .reports.machine import dumps, program_json
+
+        sys.stdout.write(dumps(program_json(program, results, checked)))
+    else:
+        from .reports.text import full_report
+
+        sys.stdout.write(full_report(program, results, checked))
+    return EXIT_OK if all(r.passed for r in checked) else EXIT_FAILED
+
+
+def _check(paths: Sequence[str], as_json: bool) -> int:
+    status = EXIT_OK
+    documents = []
+    for path in paths:
+        try:
+            program, _, checked = _evaluate(path)
+        except LayoutError as error:
+            status = EXIT_ERROR
+            if as_json:
+                documents.append({"file": path, "error": str(error)})
+            else:
+                print(error, file=sys.stderr)
+                print(f"{path}: error, not checked")
+            continue
+        failed = [r for r in checked if not r.passed]
+        if failed and status == EXIT_OK:
+            status = EXIT_FAILED
+        if as_json:
+            from .reports.machine import check_json
+
+            documents.append(check_json(program, checked))
+            continue
+        if failed:
+            print(f"{path}: {len(failed)} of {len(checked)} expectations FAIL")
+            for result in failed:
+                e = result.expectation
+                print(f"  {e.span.file}:{e.span.line}:{e.span.column}: {result.outcome.message}")
+        else:
+            print(f"{path}: all {len(checked)} expectations hold")
+    if as_json:
+        from .reports.machine import dumps
+
+        sys.stdout.write(dumps(documents))
+    return status

@@ -1,0 +1,167 @@
+"""The paraxial engine: one algorithm over plain arithmetic.
+
+Rays are traced in reduced form, height y and reduced angle nu = n·u (u the slope along the
+direction of travel), through a sequence of steps:
+
+    refraction  nu' = nu - y·phi      phi = c·(N' - N) with signed indices N = ±n
+    transfer    y'  = y + tau·nu      tau = gap / n  (always positive)
+
+Inside the engine an index carries the sense of travel (negative after an odd number of
+mirrors), so a mirror is a refraction into -N. Only `+ - * /` are used, so the same code runs on
+floats, numpy arrays (vectorized over samples) and sympy expressions. Every first-order quantity
+is then a formula over the 2×2 system matrix (A B; C D), written once in `formulas`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any, Sequence
+
+from ..system import IDEAL, MIRROR, System
+
+__all__ = [
+    "Step", "REFRACTION", "TRANSFER", "steps_of", "trace", "matrix",
+    "Split", "split_at_stop", "formulas",
+]
+
+Number = Any
+REFRACTION, TRANSFER = "refraction", "transfer"
+
+
+@dataclass(frozen=True)
+class Step:
+    kind: str  # REFRACTION or TRANSFER
+    value: Number  # phi for a refraction, tau for a transfer
+
+
+def signed_indices(system: System) -> list[Number]:
+    """The index of each space carrying the sense of travel (object space first)."""
+    return [sense * n for sense, n in zip(system.directions(), system.indices())]
+
+
+def surface_powers(system: System) -> list[Number]:
+    """The reduced power phi of each boundary."""
+    indices = signed_indices(system)
+    powers = []
+    for i, boundary in enumerate(system.boundaries):
+        before, after = indices[i], indices[i + 1]
+        if boundary.kind == IDEAL:
+            powers.append(before * boundary.power)
+        elif boundary.kind == MIRROR:
+            powers.append(boundary.curvature * (-before - before))
+        else:
+            powers.append(boundary.curvature * (after - before))
+    return powers
+
+
+def reduced_gaps(system: System) -> list[Number]:
+    """tau = gap / n for each gap (n the physical index of the space it crosses)."""
+    indices = system.indices()
+    return [gap / indices[i + 1] for i, gap in enumerate(system.gaps)]
+
+
+def steps_of(system: System) -> list[Step]:
+    """The whole layout as steps, first vertex to last vertex."""
+    steps: list[Step] = []
+    taus = reduced_gaps(system)
+    for i, phi in enumerate(surface_powers(system)):
+        steps.append(Step(REFRACTION, phi))
+        if i < len(taus):
+            steps.append(Step(TRANSFER, taus[i]))
+    return steps
+
+
+def trace(y: Number, nu: Number, steps: Sequence[Step]) -> tuple[Number, Number]:
+    """Trace a paraxial ray (or many at once) through the steps.
+
+    numpy arrays given as `y`/`nu` are updated in place (pass copies to keep them); the
+    in-place form lets a caller stream large sample sets through cache-sized chunks.
+    """
+    for step in steps:
+        if step.kind is TRANSFER:
+            y += step.value * nu
+        else:
+            nu -= step.value * y
+    return y, nu
+
+
+def matrix(steps: Sequence[Step]) -> tuple[Number, Number, Number, Number]:
+    """The system matrix (A, B, C, D): (y', nu') = (A y + B nu, C y + D nu)."""
+    a, c = trace(1, 0, steps)
+    b, d = trace(0, 1, steps)
+    return a, b, c, d
+
+
+@dataclass(frozen=True)
+class Split:
+    """The layout cut at the stop plane: first vertex → stop, and stop → last vertex."""
+
+    front: list[Step]
+    back: list[Step]
+
+
+def split_at_stop(system: System) -> Split:
+    """Cut the steps at the stop plane (which may lie inside a gap or in object space)."""
+    stop = system.stop
+    assert stop is not None
+    indices = system.indices()
+    steps = steps_of(system)
+    if stop.after < 0:  # in object space: a (backward) free-space transfer from the first vertex
+        lead = stop.offset / indices[0]
+        return Split([Step(TRANSFER, lead)], [Step(TRANSFER, -lead)] + steps)
+    cut = 2 * stop.after + 1  # the steps up to and including boundary `after`
+    into = stop.offset / indices[stop.after + 1]
+    if stop.after == len(system.boundaries) - 1:  # in image space, after the last vertex
+        return Split(steps + [Step(TRANSFER, into)], [Step(TRANSFER, -into)])
+    rest = steps[cut].value - into
+    return Split(steps[:cut] + [Step(TRANSFER, into)], [Step(TRANSFER, rest)] + steps[cut + 1 :])
+
+
+class formulas:
+    """First-order quantities as formulas over the system matrix, written once.
+
+    n0 and nk are the physical indices of object and image space, sense_k the sense of travel
+    in image space (±1). Distances are along the direction of travel, positive downstream.
+    No zero checks here: callers decide how to treat a vanishing denominator.
+    """
+
+    @staticmethod
+    def power(a, b, c, d):
+        return -c
+
+    @staticmethod
+    def back_focal_distance(a, b, c, d, nk):
+        return -a * nk / c
+
+    @staticmethod
+    def front_focal_distance(a, b, c, d, n0):
+        """Distance of the front focal point *before* the first vertex."""
+        return -d * n0 / c
+
+    @staticmethod
+    def front_principal_point(a, b, c, d, n0):
+        """Position of the front principal point after the first vertex."""
+        return n0 * (d - 1) / c
+
+    @staticmethod
+    def back_principal_point(a, b, c, d, nk):
+        """Position of the back principal point after the last vertex."""
+        return nk * (1 - a) / c
+
+    @staticmethod
+    def nodal_shift(a, b, c, d, n0, nk, sense_k):
+        """How far each nodal point lies downstream of its principal point."""
+        return (sense_k * n0 - nk) / c
+
+    @staticmethod
+    def conjugate_denominator(a, b, c, d, object_tau):
+        return c * object_tau + d
+
+    @staticmethod
+    def image_distance(a, b, c, d, object_tau, nk):
+        """Image after the last vertex for an object `object_tau` (reduced) before the first."""
+        return -(a * object_tau + b) * nk / (c * object_tau + d)
+
+    @staticmethod
+    def magnification(a, b, c, d, object_tau):
+        return 1 / (c * object_tau + d)

@@ -1,0 +1,508 @@
+"""Run a script's statements and build the `System`, its expectations and report requests.
+
+One method per statement class (`statement_<class>`), dispatched through a table built once;
+each says in its docstring the syntax it handles. All semantic checks live here and raise
+errors that point at the offending words.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from ..errors import LayoutError, LayoutFileError, LayoutNameError, LayoutUnitError
+from ..errors import LayoutValueError, Span
+from ..measure import LENGTH_UNITS, Measure
+from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion
+from ..syntax import tree as t
+from ..syntax.parser import parse
+from ..system import IDEAL, MIRROR, REFRACT, Boundary, ImageSpec, Medium, ObjectSpec
+from ..system import StopSpec, System, Wavelength
+from .expressions import ExpressionEvaluator, NumericBackend
+
+__all__ = ["Expectation", "Program", "interpret", "load_file", "PREDEFINED_MEDIA"]
+
+#: Media every script knows without defining them.
+PREDEFINED_MEDIA = {"air": 1.0, "vacuum": 1.0}
+
+
+@dataclass(frozen=True)
+class Expectation:
+    """One `expect` statement, with its values already in the layout's units."""
+
+    quantity: str
+    kind: str
+    op: str
+    expected: float
+    tolerance: float | None
+    relative: bool
+    span: Span
+    text: str  # the statement as written, for reports
+
+
+@dataclass(frozen=True)
+class Program:
+    """A script after interpretation: the layout plus what the script asks of it."""
+
+    file: str
+    system: System
+    expectations: tuple[Expectation, ...] = ()
+    reports: tuple[tuple[str, ...], ...] = ()  # each `report`: quantity names (empty: all)
+    names: dict[str, Measure] = field(default_factory=dict, compare=False)
+
+
+def load_file(path: str | Path) -> Program:
+    """Read, parse and interpret a script file."""
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as error:
+        raise LayoutFileError(f"cannot read {path}: {getattr(error, 'strerror', None) or error}") from None
+    return interpret(parse(text, str(path)), base=path.parent)
+
+
+def interpret(script: t.Script, base: Path | None = None) -> Program:
+    """Build the Program of a parsed script (`base` resolves `use "file"`)."""
+    return _Interpreter(script, base or Path.cwd()).run()
+
+
+class _Interpreter:
+    def __init__(self, script: t.Script, base: Path) -> None:
+        self.script = script
+        self.base = base
+        self.file = script.file
+        self.lines = script.text.split("\n")
+        self.names: dict[str, Measure] = {}
+        self.units = "mm"
+        self.units_fixed_by: t.Node | None = None
+        self.title = ""
+        self.media: dict[str, Medium] = {k: Medium(k, v) for k, v in PREDEFINED_MEDIA.items()}
+        self.media_defined: dict[str, t.Node] = {}
+        self.start: str | None = None
+        self.boundaries: list[Boundary] = []
+        self.boundary_nodes: list[t.Node] = []
+        self.gaps: list[Any] = []
+        self.pending_gap: t.Gap | None = None
+        self.current_medium: str | None = None
+        self.object: ObjectSpec | None = None
+        self.object_node: t.Node | None = None
+        self.stop_node: t.Stop | None = None
+        self.image: ImageSpec | None = None
+        self.image_node: t.Node | None = None
+        self.wavelengths: tuple[Wavelength, ...] = ()
+        self.expect_nodes: list[tuple[t.Expect, tuple]] = []
+        self.stop_context: tuple = ()
+        self.reports: list[tuple[str, ...]] = []
+        self.using: tuple[Path, ...] = ()
+        self.evaluator = ExpressionEvaluator(self.names, self.units, self.span, NumericBackend)
+
+    # --- helpers -----------------------------------------------------------------------------
+    def span(self, node: t.Node) -> Span:
+        pos = node.pos
+        text = self.lines[pos.line - 1] if 0 < pos.line <= len(self.lines) else ""
+        end = pos.end_column if pos.end_line == pos.line else len(text) + 1
+        return Span(self.file, pos.line, pos.column, max(end, pos.column + 1), text)
+
+    def value(self, node: t.Expr) -> Measure:
+        return self.evaluator.evaluate(node)
+
+    def length(self, node: t.Expr, what: str) -> Any:
+        measure = self.value(node)
+        if measure.bare or measure.dimension == (1, 0):
+            return measure.value
+        raise LayoutUnitError(
+            f"{what} must be a length, not {measure.describe()}", self.span(node),
+            expected=f"a length such as 5 or 5 {self.units}",
+        )
+
+    def number(self, node: t.Expr, what: str) -> Any:
+        measure = self.value(node)
+        if measure.dimension == (0, 0):
+            return measure.value
+        raise LayoutUnitError(
+            f"{what} is a plain number, not {measure.describe()}", self.span(node),
+            expected="a number without a unit",
+        )
+
+    def angle(self, node: t.Expr, what: str) -> Any:
+        measure = self.value(node)
+        if measure.dimension == (0, 1) or (measure.bare and measure.value == 0):
+            return measure.value
+        if measure.bare:
+            raise LayoutUnitError(
+                f"{what} needs a unit", self.span(node), expected="an angle such as 5 deg or 0.1 rad",
+                hint=f"write '{_literal(node)} deg' or '{_literal(node)} rad'",
+            )
+        raise LayoutUnitError(f"{what} must be an angle, not {measure.describe()}", self.span(node))
+
+    def power(self, node: t.Expr, what: str) -> Any:
+        """An optical power; a bare number is in diopters."""
+        measure = self.value(node)
+        if measure.bare:
+            return measure.value * LENGTH_UNITS[self.units] / 1000.0
+        if measure.dimension == (-1, 0):
+            return measure.value
+        raise LayoutUnitError(f"{what} must be an optical power, not {measure.describe()}",
+                              self.span(node), expected="a power such as 10 diopters")
+
+    def positive(self, value: Any, node: t.Node, what: str, allow_zero: bool = False) -> Any:
+        if value < 0 or (value == 0 and not allow_zero):
+            bound = "zero or more" if allow_zero else "more than zero"
+            raise LayoutValueError(f"{what} must be {bound}", self.span(node))
+        return value
+
+    def medium_named(self, ident: t.Ident) -> str:
+        if ident.text in self.media:
+            return ident.text
+        close = difflib.get_close_matches(ident.text, list(self.media), n=1)
+        raise LayoutNameError(
+            f"unknown medium {ident.text!r}", self.span(ident),
+            expected="a medium defined earlier with 'medium NAME index N', or air",
+            hint=f"did you mean {close[0]!r}?" if close else None,
+        )
+
+    def once(self, existing: t.Node | None, node: t.Node, what: str) -> None:
+        if existing is not None:
+            raise LayoutValueError(
+                f"{what} is given twice (first on line {existing.pos.line})", self.span(node)
+            )
+
+    # --- the run -----------------------------------------------------------------------------
+    def run(self) -> Program:
+        for statement in self.script.statements:
+            self.execute(statement)
+        return self.finish()
+
+    def execute(self, statement: t.Statement) -> None:
+        handler = _HANDLERS.get(type(statement).__name__)
+        if handler is None:
+            raise LayoutValueError(f"statement {type(statement).__name__} is not supported here",
+                                   self.span(statement))
+        handler(self, statement)
+
+    def statement_Title(self, node: t.Title) -> None:
+        """layout "text" """
+        self.title = node.text
+
+    def statement_Units(self, node: t.Units) -> None:
+        """units mm"""
+        if node.unit.text not in LENGTH_UNITS:
+            raise LayoutUnitError(f"unknown length unit {node.unit.text!r}", self.span(node.unit),
+                                  expected="one of " + ", ".join(LENGTH_UNITS))
+        if self.units_fixed_by is not None:
+            raise LayoutValueError(
+                "units must come before any length is used "
+                f"(line {self.units_fixed_by.pos.line} already used one)", self.span(node))
+        self.units = "um" if node.unit.text == "µm" else node.unit.text
+        self.evaluator.script_unit = self.units
+
+    def _fix_units(self, node: t.Node) -> None:
+        if self.units_fixed_by is None:
+            self.units_fixed_by = node
+
+    def statement_Let(self, node: t.Let) -> None:
+        """let name = expression"""
+        if node.name.text in self.names:
+            raise LayoutNameError(f"{node.name.text!r} is already defined", self.span(node.name))
+        self._fix_units(node)
+        self.names[node.name.text] = self.value(node.value)
+
+    def statement_MediumIndex(self, node: t.MediumIndex) -> None:
+        """medium NAME index N"""
+        name = node.name.text
+        if name in self.media_defined or name in PREDEFINED_MEDIA:
+            raise LayoutNameError(f"medium {name!r} is already defined", self.span(node.name))
+        index = self.number(node.index, "a refractive index")
+        self.positive(index, node.index, "a refractive index")
+        self.media[name] = Medium(name, index)
+        self.media_defined[name] = node
+
+    def statement_StartMedium(self, node: t.StartMedium) -> None:
+        """start in MEDIUM"""
+        if self.start is not None:
+            raise LayoutValueError("the starting medium is given twice", self.span(node))
+        if self.boundaries:
+            raise LayoutValueError("'start in' must come before the first surface", self.span(node))
+        self.start = self.current_medium = self.medium_named(node.medium)
+
+    def statement_ObjectAtInfinity(self, node: t.ObjectAtInfinity) -> None:
+        """object at infinity[, field angle A]"""
+        self.once(self.object_node, node, "the object")
+        angle = 0.0
+        if node.field_angle is not None:
+            angle = self.angle(node.field_angle, "a field angle")
+            if abs(angle) >= math.pi / 2:
+                raise LayoutValueError("a field angle must be less than 90 deg",
+                                       self.span(node.field_angle))
+        self.object, self.object_node = ObjectSpec(None, 0.0, angle), node
+
+    def statement_ObjectBefore(self, node: t.ObjectBefore) -> None:
+        """object D before[, height H]"""
+        self.once(self.object_node, node, "the object")
+        self._fix_units(node)
+        distance = self.length(node.distance, "the object distance")
+        height = 0.0 if node.height is None else self.length(node.height, "the object height")
+        self.object, self.object_node = ObjectSpec(distance, height, 0.0), node
+
+    def statement_BoundaryStatement(self, node: t.BoundaryStatement) -> None:
+        """surface [NAME] radius R | curvature C | flat [into MEDIUM][, clear diameter D]
+        mirror [NAME] radius R | curvature C | flat[, clear diameter D]
+        lens [NAME] focal length F | power P[, clear diameter D]"""
+        if self.current_medium is None:
+            raise LayoutValueError(
+                f"a {node.kind} before any medium", self.span(node),
+                hint="say where the light starts first, e.g. 'start in air'",
+            )
+        self._fix_units(node)
+        number = len(self.boundaries) + 1
+        name = node.name.text if node.name else f"#{number}"
+        if node.name and any(b.name == name for b in self.boundaries):
+            raise LayoutNameError(f"a surface named {name!r} already exists", self.span(node.name))
+        if self.boundaries:
+            self.gaps.append(0.0 if self.pending_gap is None else self.pending_gap_value)
+        elif self.pending_gap is not None:
+            raise LayoutValueError("a gap before the first surface", self.span(self.pending_gap),
+                                   hint="place the object with 'object 250 before' instead")
+        self.pending_gap = None
+        curvature, power, kind = 0.0, 0.0, REFRACT
+        after = self.current_medium
+        if node.kind in ("surface", "mirror"):
+            curvature = self.curvature(node.shape)
+            if node.kind == "mirror":
+                kind = MIRROR
+            elif node.into is not None:
+                after = self.medium_named(node.into)
+        else:
+            kind = IDEAL
+            if node.strength_kind == "power":
+                power = self.power(node.strength, "a lens power")
+            else:
+                focal = self.length(node.strength, "a focal length")
+                if focal == 0:
+                    raise LayoutValueError("a focal length cannot be zero", self.span(node.strength))
+                power = 1 / focal
+        clear = None
+        if node.clear_diameter is not None:
+            clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
+                                  node.clear_diameter, "a clear diameter")
+        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
+        self.boundary_nodes.append(node)
+        self.current_medium = after
+
+    def curvature(self, shape: t.Shape) -> Any:
+        if shape.kind == "flat":
+            return 0.0
+        if shape.kind == "curvature":
+            measure = self.value(shape.value)
+            if measure.bare or measure.dimension == (-1, 0):
+                return measure.value
+            raise LayoutUnitError(f"a curvature is 1/length, not {measure.describe()}",
+                                  self.span(shape.value))
+        radius = self.length(shape.value, "a radius")
+        if radius == 0:
+            raise LayoutValueError("a radius cannot be zero", self.span(shape.value),
+                                   hint="write 'flat' for a plane surface")
+        return 1 / radius
+
+    def statement_Gap(self, node: t.Gap) -> None:
+        """gap LENGTH"""
+        if self.pending_gap is not None:
+            raise LayoutValueError(
+                f"two gaps in a row (the other is on line {self.pending_gap.pos.line})",
+                self.span(node), hint="add them into one gap")
+        self._fix_units(node)
+        value = self.positive(self.length(node.length, "a gap"), node.length, "a gap",
+                              allow_zero=True)
+        if not self.boundaries:
+            raise LayoutValueError("a gap before the first surface", self.span(node),
+                                   hint="place the object with 'object 250 before' instead")
+        self.pending_gap, self.pending_gap_value = node, value
+
+    def statement_Stop(self, node: t.Stop) -> None:
+        """stop at NAME, SIZE | stop D before NAME, SIZE | stop D after NAME, SIZE"""
+        self.once(self.stop_node, node, "the stop")
+        self._fix_units(node)
+        self.stop_node = node
+        self.stop_context = (self.file, self.lines)
+
+    def statement_Image(self, node: t.Image) -> None:
+        """image at focus | image D after"""
+        self.once(self.image_node, node, "the image plane")
+        distance = None
+        if node.distance is not None:
+            self._fix_units(node)
+            distance = self.length(node.distance, "the image distance")
+        self.image, self.image_node = ImageSpec(distance), node
+
+    def statement_Wavelengths(self, node: t.Wavelengths) -> None:
+        """wavelengths W [primary], W, ..."""
+        items = []
+        for item in node.items:
+            measure = self.value(item.value)
+            if measure.bare or measure.dimension != (1, 0):
+                raise LayoutUnitError("a wavelength needs a length unit", self.span(item.value),
+                                      expected="a wavelength such as 587.6 nm or 0.5876 um")
+            self.positive(measure.value, item.value, "a wavelength")
+            items.append(Wavelength(measure.value, item.primary))
+        if sum(w.primary for w in items) > 1:
+            raise LayoutValueError("only one wavelength can be primary", self.span(node))
+        self.wavelengths = tuple(items)
+
+    def statement_Expect(self, node: t.Expect) -> None:
+        """expect QUANTITY = V ± T | within T%, expect QUANTITY < V (and <=, >, >=)"""
+        self.expect_nodes.append((node, (self.file, self.lines)))
+
+    def statement_Report(self, node: t.Report) -> None:
+        """report | report QUANTITY, QUANTITY, ..."""
+        self.reports.append(tuple(self.quantity(q).name for q in node.quantities))
+
+    def statement_Use(self, node: t.Use) -> None:
+        """use LIBRARY | use "file.lay" """
+        if node.is_file:
+            path = (self.base / node.target).resolve()
+        else:
+            from ..resources import stdlib_dir
+
+            path = stdlib_dir() / f"{node.target}.lay"
+            if not path.is_file():
+                known = sorted(p.stem for p in stdlib_dir().glob("*.lay"))
+                close = difflib.get_close_matches(node.target, known, n=1)
+                raise LayoutNameError(
+                    f"no library named {node.target!r}", self.span(node),
+                    expected="one of " + ", ".join(known) if known else None,
+                    hint=f"did you mean {close[0]!r}?" if close else None)
+        if path in self.using:
+            raise LayoutValueError(f"{node.target} uses itself", self.span(node))
+        try:
+            text = path.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as error:
+            raise LayoutFileError(f"cannot read {path}: {getattr(error, 'strerror', error)}",
+                                  self.span(node)) from None
+        script = parse(text, str(path))
+        saved = (self.file, self.lines, self.base, self.using)
+        self.file, self.lines, self.base = str(path), script.text.split("\n"), path.parent
+        self.using = self.using + (path,)
+        try:
+            for statement in script.statements:
+                self.execute(statement)
+        finally:
+            self.file, self.lines, self.base, self.using = saved
+
+    # --- finishing ---------------------------------------------------------------------------
+    def quantity(self, node: t.Quantity):
+        info = lookup(node.text)
+        if info is None:
+            close = suggestion(node.text)
+            raise LayoutNameError(
+                f"unknown quantity {node.text!r}", self.span(node),
+                expected="a quantity such as focal length, image distance or magnification",
+                hint=f"did you mean {close!r}?" if close else None)
+        return info
+
+    def finish(self) -> Program:
+        if not self.boundaries:
+            raise LayoutValueError("the layout has no surfaces", Span(self.file, 1, 1, 2,
+                                   self.lines[0] if self.lines else ""),
+                                   hint="add at least one 'surface', 'mirror' or 'lens'")
+        if self.pending_gap is not None:
+            raise LayoutValueError(
+                "nothing follows this gap", self.span(self.pending_gap),
+                hint="for the image plane write 'image 40 after' instead of a last gap")
+        media_used = {self.start, *(b.medium_after for b in self.boundaries)}
+        media = tuple(m for name, m in sorted(self.media.items()) if name in media_used)
+        system = System(
+            media=media, start_medium=self.start, boundaries=tuple(self.boundaries),
+            gaps=tuple(self.gaps), object=self.object or ObjectSpec(),
+            stop=None, image=self.image or ImageSpec(), wavelengths=self.wavelengths,
+            title=self.title, units=self.units,
+        )
+        if self.stop_node is not None:
+            from dataclasses import replace
+
+            self.file, self.lines = self.stop_context
+            system = replace(system, stop=self.build_stop(self.stop_node, system))
+        expectations = []
+        for node, (self.file, self.lines) in self.expect_nodes:
+            expectations.append(self.expectation(node))
+        expectations = tuple(expectations)
+        return Program(self.script.file, system, expectations, tuple(self.reports),
+                       dict(self.names))
+
+    def build_stop(self, node: t.Stop, system: System) -> StopSpec:
+        try:
+            index = system.boundary_index(node.anchor.text)
+        except KeyError:
+            names = [b.name for b in system.boundaries]
+            close = difflib.get_close_matches(node.anchor.text, names, n=1)
+            raise LayoutNameError(
+                f"no surface named {node.anchor.text!r} to place the stop at",
+                self.span(node.anchor), expected="the name of a surface, mirror or lens",
+                hint=f"did you mean {close[0]!r}?" if close else None) from None
+        if node.size_kind == "diameter":
+            size = self.positive(self.length(node.size, "the stop diameter"), node.size,
+                                 "the stop diameter")
+        else:
+            size = self.positive(self.number(node.size, f"the {node.size_kind}"), node.size,
+                                 f"the {node.size_kind}")
+            if node.size_kind == "numerical aperture" and size >= system.indices()[0]:
+                raise LayoutValueError(
+                    "a numerical aperture must be less than the object-space index",
+                    self.span(node.size))
+        if node.relation == "at":
+            return StopSpec(index, 0.0, node.size_kind, size, node.anchor.text)
+        offset = self.positive(self.length(node.offset, "the stop distance"), node.offset,
+                               "the stop distance", allow_zero=True)
+        last = len(system.boundaries) - 1
+        if node.relation == "after":
+            room = system.gaps[index] if index < last else math.inf
+            if offset > room:
+                raise LayoutValueError(
+                    f"the stop cannot be placed: the gap after {node.anchor.text!r} is only "
+                    f"{room:g} {self.units}", self.span(node.offset))
+            return StopSpec(index, offset, node.size_kind, size, node.anchor.text)
+        if index == 0:
+            return StopSpec(-1, -offset, node.size_kind, size, node.anchor.text)
+        room = system.gaps[index - 1]
+        if offset > room:
+            raise LayoutValueError(
+                f"the stop cannot be placed: the gap before {node.anchor.text!r} is only "
+                f"{room:g} {self.units}", self.span(node.offset))
+        return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
+
+    def expectation(self, node: t.Expect) -> Expectation:
+        info = self.quantity(node.quantity)
+        convert = {LENGTH: lambda e: self.length(e, "the expected value"),
+                   POWER: lambda e: self.power(e, "the expected value"),
+                   NUMBER: lambda e: self.number(e, "the expected value")}[info.kind]
+        expected = convert(node.value)
+        tolerance, relative = None, False
+        if node.tolerance is not None:
+            if node.op != "=":
+                raise LayoutValueError("a tolerance only goes with '='", self.span(node.tolerance))
+            measure = self.value(node.tolerance.value)
+            if measure.relative:
+                tolerance, relative = measure.value, True
+            else:
+                tolerance = convert(node.tolerance.value)
+            self.positive(tolerance, node.tolerance.value, "a tolerance", allow_zero=True)
+        elif node.op == "=":
+            raise LayoutValueError(
+                "an '=' expectation needs a tolerance", self.span(node),
+                expected="'± 0.05' or 'within 1%' after the value")
+        span = self.span(node)
+        return Expectation(info.name, info.kind, node.op, expected, tolerance, relative, span,
+                           span.line_text.strip())
+
+
+def _literal(node: t.Expr) -> str:
+    return node.text if isinstance(node, t.Number) else "5"
+
+
+_HANDLERS = {
+    name[len("statement_"):]: method
+    for name, method in vars(_Interpreter).items()
+    if name.startswith("statement_")
+}

@@ -1,0 +1,70 @@
+"""JSON output for machines: the same content as the text report, with stable key order."""
+
+from __future__ import annotations
+
+import json
+
+from ..checks import CheckResult, display_unit, to_display
+from ..engines.firstorder import FirstOrder, Unavailable
+from ..interpret.interpreter import Program
+from ..quantities import QUANTITIES, REPORT_ORDER
+from .text import SIGN_CONVENTION
+
+__all__ = ["program_json", "check_json", "dumps"]
+
+
+def _round(value: float) -> float:
+    """Twelve significant digits: enough for any optics, stable across platforms."""
+    return float(f"{value:.12g}")
+
+
+def _quantity(name: str, value, units: str) -> dict:
+    kind = QUANTITIES[name].kind
+    if isinstance(value, Unavailable):
+        return {"value": None, "unit": display_unit(kind, units), "why": value.reason}
+    return {"value": _round(to_display(value, kind, units)), "unit": display_unit(kind, units)}
+
+
+def _checks(checked: list[CheckResult]) -> list[dict]:
+    return [{
+        "line": r.expectation.span.line,
+        "quantity": r.expectation.quantity,
+        "statement": r.expectation.text,
+        "passed": r.passed,
+        "message": r.outcome.message,
+    } for r in checked]
+
+
+def program_json(program: Program, results: FirstOrder, checked: list[CheckResult]) -> dict:
+    system = program.system
+    units = system.units
+    return {
+        "file": program.file,
+        "title": system.title,
+        "units": units,
+        "sign_convention": SIGN_CONVENTION,
+        "boundaries": [{
+            "name": b.name, "kind": b.kind,
+            "radius": None if b.curvature == 0 else _round(1 / b.curvature),
+            "focal_length": _round(1 / b.power) if b.power else None,
+            "medium_after": b.medium_after,
+            "gap_after": _round(system.gaps[i]) if i < len(system.gaps) else None,
+            "clear_diameter": None if b.clear_diameter is None else _round(b.clear_diameter),
+        } for i, b in enumerate(system.boundaries)],
+        "first_order": {name: _quantity(name, results[name], units) for name in REPORT_ORDER},
+        "notes": list(results.notes),
+        "expectations": _checks(checked),
+    }
+
+
+def check_json(program: Program, checked: list[CheckResult]) -> dict:
+    return {
+        "file": program.file,
+        "passed": sum(r.passed for r in checked),
+        "failed": sum(not r.passed for r in checked),
+        "expectations": _checks(checked),
+    }
+
+
+def dumps(data) -> str:
+    return json.dumps(data, indent=2, sort_keys=False, ensure_ascii=False, allow_nan=False) + "\n"

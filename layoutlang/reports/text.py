@@ -1,0 +1,152 @@
+"""Plain-text reports: the layout table, the first-order properties and the expectations.
+
+Aligned columns, a unit on every number, the sign convention stated at the top, and nothing
+that varies between runs (same script, same bytes).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..checks import CheckResult, display_unit, to_display
+from ..engines.firstorder import FirstOrder, Unavailable
+from ..interpret.interpreter import Program
+from ..quantities import QUANTITIES, REPORT_ORDER
+from ..system import IDEAL, MIRROR, System
+from ..testing import format_number
+
+__all__ = ["SIGN_CONVENTION", "layout_table", "first_order_table", "expectation_lines",
+           "full_report", "describe_value"]
+
+SIGN_CONVENTION = (
+    "signs: light starts travelling in +z; distances are measured along the path and are "
+    "positive downstream; a radius is positive when its centre lies downstream of the vertex"
+)
+
+
+def _table(rows: list[list[str]], indent: str = "  ") -> list[str]:
+    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
+    return [indent + "  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip()
+            for row in rows]
+
+
+def _length(value, units: str) -> str:
+    return f"{format_number(value)} {units}"
+
+
+def layout_table(system: System) -> list[str]:
+    units = system.units
+    rows = [["#", "boundary", "shape", "light then in", "index", "then gap", "clear diameter"]]
+    indices = system.indices()
+    for i, boundary in enumerate(system.boundaries):
+        if boundary.kind == IDEAL:
+            shape = f"thin lens, focal length {_length(1 / boundary.power, units)}" \
+                if boundary.power else "thin lens, no power"
+        else:
+            shape = "flat" if boundary.curvature == 0 else \
+                f"radius {_length(1 / boundary.curvature, units)}"
+            if boundary.kind == MIRROR:
+                shape = "mirror, " + shape
+        gap = _length(system.gaps[i], units) if i < len(system.gaps) else "-"
+        clear = "-" if boundary.clear_diameter is None else _length(boundary.clear_diameter, units)
+        rows.append([str(i + 1), boundary.name, shape, boundary.medium_after,
+                     format_number(indices[i + 1]), gap, clear])
+    lines = [f"  light starts in {system.start_medium} (index {format_number(indices[0])})"]
+    return lines + _table(rows)
+
+
+def _setting_lines(system: System) -> list[str]:
+    units = system.units
+    obj = system.object
+    if obj.at_infinity:
+        angle = math.degrees(obj.field_angle)
+        where = f"at infinity, field angle {format_number(angle)} deg"
+    else:
+        side = "before" if obj.distance >= 0 else "after (a virtual object)"
+        where = (f"{_length(abs(obj.distance), units)} {side} the first boundary, "
+                 f"height {_length(obj.height, units)}")
+    lines = [f"  object: {where}"]
+    stop = system.stop
+    if stop is None:
+        lines.append("  stop: none given (pupils and f-number are not computed)")
+    else:
+        size = {"diameter": f"diameter {_length(stop.size, units)}",
+                "f-number": f"sized for f-number {format_number(stop.size)}",
+                "numerical aperture":
+                    f"sized for object numerical aperture {format_number(stop.size)}"}[
+            stop.size_kind]
+        if stop.after < 0:
+            place = f"{_length(-stop.offset, units)} before the first boundary"
+        elif stop.offset == 0:
+            place = f"at {system.boundaries[stop.after].name}"
+        else:
+            place = f"{_length(stop.offset, units)} after {system.boundaries[stop.after].name}"
+        lines.append(f"  stop: {place}, {size}")
+    image = system.image
+    lines.append("  image plane: at the paraxial focus" if image.distance is None
+                 else f"  image plane: {_length(image.distance, units)} after the last boundary")
+    if system.wavelengths:
+        words = ", ".join(
+            f"{format_number(w.value * _nm_per_unit(units))} nm" + (" (primary)" if w.primary else "")
+            for w in system.wavelengths)
+        lines.append(f"  wavelengths: {words}")
+    return lines
+
+
+def _nm_per_unit(units: str) -> float:
+    from ..measure import LENGTH_UNITS
+
+    return LENGTH_UNITS[units] * 1e6
+
+
+def describe_value(name: str, value, units: str) -> str:
+    """A quantity's value with its unit, or the reason it has none."""
+    if isinstance(value, Unavailable):
+        return str(value)
+    kind = QUANTITIES[name].kind
+    shown = to_display(value, kind, units)
+    unit = display_unit(kind, units)
+    text = f"{format_number(shown)} {unit}".rstrip()
+    if name == "image distance":
+        text += "  (real image, downstream)" if value >= 0 else \
+            f"  (virtual image, {_length(-value, units)} upstream of the last boundary)"
+    elif name == "magnification" and value != 0:
+        text += "  (inverted)" if value < 0 else "  (upright)"
+    return text
+
+
+def first_order_table(results: FirstOrder, units: str, names: list[str] | None = None) -> list[str]:
+    rows = []
+    for name in names or REPORT_ORDER:
+        value = results[name]
+        if names is None and name == "afocal angular magnification" and not results.afocal:
+            continue
+        rows.append([name, describe_value(name, value, units)])
+    return _table(rows)
+
+
+def expectation_lines(checked: list[CheckResult]) -> list[str]:
+    rows = []
+    for result in checked:
+        e = result.expectation
+        rows.append(["holds" if result.passed else "FAILS", f"line {e.span.line}",
+                     result.outcome.message])
+    return _table(rows) if rows else ["  (none)"]
+
+
+def full_report(program: Program, results: FirstOrder, checked: list[CheckResult]) -> str:
+    system = program.system
+    title = system.title or program.file
+    lines = [f"layout: {title}", f"  file: {program.file}; units: {system.units}",
+             f"  {SIGN_CONVENTION}", "", "boundaries"]
+    lines += layout_table(system)
+    lines += ["", "setting"] + _setting_lines(system)
+    lines += ["", "first-order properties"] + first_order_table(results, system.units)
+    for note in results.notes:
+        lines.append(f"  note: {note}")
+    for names in program.reports:
+        if names:
+            lines += ["", "requested: " + ", ".join(names)]
+            lines += first_order_table(results, system.units, list(names))
+    lines += ["", "expectations"] + expectation_lines(checked)
+    return "\n".join(lines) + "\n"

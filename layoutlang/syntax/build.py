@@ -1,0 +1,213 @@
+"""Turn lark's parse tree into the syntax-tree dataclasses, keeping every position.
+
+Runs after parsing (not inside `Lark(transformer=...)`) so that the meta information carrying
+line and column is available to every node. One method per grammar alias.
+"""
+
+from __future__ import annotations
+
+from lark import Token, Transformer, v_args
+
+from . import tree as t
+
+__all__ = ["build_script"]
+
+
+def _pos(meta) -> t.Pos:
+    if getattr(meta, "empty", True):
+        return t.NO_POS
+    return t.Pos(meta.line, meta.column, meta.end_line, meta.end_column)
+
+
+def _token_pos(token: Token) -> t.Pos:
+    return t.Pos(token.line, token.column, token.end_line, token.end_column)
+
+
+def _ident(token: Token | None) -> t.Ident | None:
+    return None if token is None else t.Ident(str(token), pos=_token_pos(token))
+
+
+def _options(items) -> dict:
+    """Collect trailing `, option value` pairs given as (key, value) tuples."""
+    found: dict = {}
+    for item in items:
+        if isinstance(item, tuple):
+            found[item[0]] = item[1]
+    return found
+
+
+@v_args(meta=True)
+class _Builder(Transformer):
+    # --- expressions ---------------------------------------------------------------------
+    def number(self, meta, items):
+        value, unit = items
+        return t.Number(str(value), None if unit is None else str(unit), pos=_pos(meta))
+
+    def name(self, meta, items):
+        return t.Name(str(items[0]), pos=_pos(meta))
+
+    def call(self, meta, items):
+        return t.Call(str(items[0]), tuple(items[1:]), pos=_pos(meta))
+
+    def binary(self, meta, items):
+        left, op, right = items
+        symbol = {"−": "-", "×": "*", "÷": "/"}.get(str(op), str(op))
+        return t.Binary(symbol, left, right, pos=_pos(meta))
+
+    def negate(self, meta, items):
+        return t.Negate(items[1], pos=_pos(meta))
+
+    def unary_plus(self, meta, items):
+        return items[1]
+
+    # --- statements ----------------------------------------------------------------------
+    def start(self, meta, items):
+        return list(items)
+
+    def title(self, meta, items):
+        return t.Title(str(items[0])[1:-1], pos=_pos(meta))
+
+    def units(self, meta, items):
+        return t.Units(_ident(items[0]), pos=_pos(meta))
+
+    def let(self, meta, items):
+        return t.Let(_ident(items[0]), items[1], pos=_pos(meta))
+
+    def medium_index(self, meta, items):
+        return t.MediumIndex(_ident(items[0]), items[1], pos=_pos(meta))
+
+    def start_medium(self, meta, items):
+        return t.StartMedium(_ident(items[0]), pos=_pos(meta))
+
+    def object_height(self, meta, items):
+        return ("height", items[0])
+
+    def object_field_angle(self, meta, items):
+        return ("field angle", items[0])
+
+    def object_at_infinity(self, meta, items):
+        options = _options(items)
+        return t.ObjectAtInfinity(options.get("field angle"), pos=_pos(meta))
+
+    def object_before(self, meta, items):
+        options = _options(items[1:])
+        return t.ObjectBefore(items[0], options.get("height"), pos=_pos(meta))
+
+    def radius(self, meta, items):
+        return t.Shape("radius", items[0], pos=_pos(meta))
+
+    def curvature(self, meta, items):
+        return t.Shape("curvature", items[0], pos=_pos(meta))
+
+    def flat(self, meta, items):
+        return t.Shape("flat", None, pos=_pos(meta))
+
+    def clear_diameter(self, meta, items):
+        return ("clear diameter", items[0])
+
+    def lens_focal_length(self, meta, items):
+        return ("focal length", items[0])
+
+    def lens_power(self, meta, items):
+        return ("power", items[0])
+
+    def surface(self, meta, items):
+        name, shape, into, *rest = items
+        return t.BoundaryStatement(
+            "surface", _ident(name), shape=shape, into=_ident(into),
+            clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta),
+        )
+
+    def mirror(self, meta, items):
+        name, shape, *rest = items
+        return t.BoundaryStatement(
+            "mirror", _ident(name), shape=shape,
+            clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta),
+        )
+
+    def lens(self, meta, items):
+        name, (kind, strength), *rest = items
+        return t.BoundaryStatement(
+            "lens", _ident(name), strength_kind=kind, strength=strength,
+            clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta),
+        )
+
+    def gap(self, meta, items):
+        return t.Gap(items[0], pos=_pos(meta))
+
+    def stop_diameter(self, meta, items):
+        return ("diameter", items[0])
+
+    def stop_f_number(self, meta, items):
+        return ("f-number", items[0])
+
+    def stop_numerical_aperture(self, meta, items):
+        return ("numerical aperture", items[0])
+
+    def stop_at(self, meta, items):
+        anchor, (kind, size) = items
+        return t.Stop(_ident(anchor), "at", None, kind, size, pos=_pos(meta))
+
+    def stop_before(self, meta, items):
+        offset, anchor, (kind, size) = items
+        return t.Stop(_ident(anchor), "before", offset, kind, size, pos=_pos(meta))
+
+    def stop_after(self, meta, items):
+        offset, anchor, (kind, size) = items
+        return t.Stop(_ident(anchor), "after", offset, kind, size, pos=_pos(meta))
+
+    def image_at_focus(self, meta, items):
+        return t.Image(None, pos=_pos(meta))
+
+    def image_after(self, meta, items):
+        return t.Image(items[0], pos=_pos(meta))
+
+    def wavelength(self, meta, items):
+        return t.Wavelength(items[0], items[1] is not None, pos=_pos(meta))
+
+    def wavelengths(self, meta, items):
+        return t.Wavelengths(tuple(items), pos=_pos(meta))
+
+    def quantity(self, meta, items):
+        words: list[str] = []
+        joined = False
+        for token in items:
+            if token.type == "MINUS":
+                joined = True
+            elif joined:
+                words[-1] += "-" + str(token)
+                joined = False
+            else:
+                words.append(str(token))
+        return t.Quantity(tuple(words), pos=_pos(meta))
+
+    def comparison(self, meta, items):
+        return str(items[0])
+
+    def tolerance_plus_minus(self, meta, items):
+        return t.Tolerance("±", items[1], pos=_pos(meta))
+
+    def tolerance_within(self, meta, items):
+        return t.Tolerance("within", items[0], pos=_pos(meta))
+
+    def expect(self, meta, items):
+        quantity, op, value, tolerance = items
+        return t.Expect(quantity, op, value, tolerance, pos=_pos(meta))
+
+    def report(self, meta, items):
+        return t.Report(tuple(q for q in items if q is not None), pos=_pos(meta))
+
+    def use_library(self, meta, items):
+        return t.Use(str(items[0]), False, pos=_pos(meta))
+
+    def use_file(self, meta, items):
+        return t.Use(str(items[0])[1:-1], True, pos=_pos(meta))
+
+
+_BUILDER = _Builder()
+
+
+def build_script(parse_tree, file: str, text: str) -> t.Script:
+    """The syntax tree of one parsed file."""
+    statements = _BUILDER.transform(parse_tree)
+    return t.Script(file, tuple(statements), text=text, pos=t.Pos(1, 1, 1, 1))

@@ -1,0 +1,78 @@
+"""Labels for the typical syntax mistakes, matched by parser state (lark `match_examples`).
+
+Each label lists a few wrong lines that leave the parser in the state we want to name; any
+input failing in the same state gets the same label. Add a line here when users keep making a
+mistake the generic "expected ..." message explains badly.
+"""
+
+from __future__ import annotations
+
+from functools import cache
+
+from lark.exceptions import UnexpectedInput
+
+__all__ = ["label_for", "EXAMPLES"]
+
+EXAMPLES: dict[str, list[str]] = {
+    "a radius needs a value, e.g. 'radius 52.9' or 'radius -38.1 mm'": [
+        "surface front radius into glass\n",
+        "surface radius into glass\n",
+        "surface front radius\n",
+        "mirror primary radius\n",
+        "surface front radius , clear diameter 4\n",
+    ],
+    "a curvature needs a value, e.g. 'curvature 0.02'": [
+        "surface front curvature into glass\n",
+        "surface curvature\n",
+    ],
+    "a surface needs its shape: 'radius R', 'curvature C' or 'flat'": [
+        "surface front into glass\n",
+        "surface into glass\n",
+        "surface front\n",
+        "surface\n",
+        "mirror\n",
+        "mirror m\n",
+    ],
+    "a gap needs a length, e.g. 'gap 5.2'": ["gap\n", "gap into\n"],
+    "say where the object is: 'object at infinity' or 'object 250 before'": [
+        "object 250\n",
+        "object\n",
+        "object 250 after\n",
+    ],
+    "say how large the stop is: ', diameter D', ', f-number N' or ', numerical aperture NA'": [
+        "stop at front\n",
+        "stop at front,\n",
+        "stop 3 after front\n",
+    ],
+    "say where the image plane is: 'image at focus' or 'image 40 after'": [
+        "image\n",
+        "image 40\n",
+        "image at\n",
+    ],
+    "an expectation compares a quantity with a value, e.g. 'expect focal length = 80 ± 0.5'": [
+        "expect focal length 80\n",
+        "expect focal length\n",
+        "expect\n",
+    ],
+    "a medium needs its refractive index, e.g. 'medium crown index 1.517'": [
+        "medium crown\n",
+        "medium crown 1.5\n",
+        "medium crown index\n",
+    ],
+    "name the starting medium, e.g. 'start in air'": ["start\n", "start air\n", "start in\n"],
+}
+
+
+@cache
+def _parse_function():
+    from .parser import parser
+
+    return parser().parse
+
+
+def label_for(error: UnexpectedInput, source: str) -> str | None:
+    """The label of the typical mistake this error matches, or None."""
+    try:
+        return error.match_examples(_parse_function(), EXAMPLES, use_accepts=True)
+    except Exception:  # a label is a courtesy: never let it hide the real error
+        return None

@@ -1,0 +1,155 @@
+"""Parse layoutlang text into a syntax tree, turning lark's errors into readable ones.
+
+The LALR parser is built once per process from `grammar/layoutlang.lark` and cached on disk by
+lark, so a numeric check does not pay for building it. Typical mistakes are labelled by
+`mistakes.py` (matched by parser state); every other error still says, in words, what the
+grammar would have accepted and offers a "did you mean" for a misspelt keyword.
+"""
+
+from __future__ import annotations
+
+import difflib
+from functools import cache
+
+from lark import Lark, Token
+from lark.exceptions import UnexpectedCharacters, UnexpectedInput, UnexpectedToken
+
+from ..errors import LayoutSyntaxError, Span
+from ..resources import grammar_file
+from . import tree
+from .build import build_script
+
+__all__ = ["parse", "parser", "describe_terminal", "keyword_words"]
+
+_DESCRIPTIONS = {
+    "NUMBER": "a number",
+    "NAME": "a name",
+    "STRING": 'a text in double quotes',
+    "UNIT": "a unit (nm, um, mm, cm, m, in, deg, rad, diopters or %)",
+    "_NL": "the end of the line",
+    "$END": "the end of the script",
+    "MINUS": "'-'",
+    "TIMES": "'*'",
+    "DIVIDE": "'/'",
+    "PLUS_MINUS": "'±'",
+}
+
+
+@cache
+def parser() -> Lark:
+    """The shared LALR parser (built once, cached on disk by lark)."""
+    return Lark(
+        grammar_file().read_text(encoding="utf-8"),
+        parser="lalr",
+        strict=True,
+        propagate_positions=True,
+        maybe_placeholders=True,
+        cache=True,
+    )
+
+
+@cache
+def _literal_terminals() -> dict[str, str]:
+    """Terminal name → its literal text, for terminals that are a fixed word or symbol."""
+    found = {}
+    for terminal in parser().terminals:
+        if terminal.pattern.type == "str":
+            found[terminal.name] = terminal.pattern.value
+    return found
+
+
+@cache
+def keyword_words() -> frozenset[str]:
+    """Every fixed word of the language (used by completion, highlighting and did-you-mean)."""
+    return frozenset(v for v in _literal_terminals().values() if v[:1].isalpha())
+
+
+def describe_terminal(name: str) -> str:
+    """A terminal as a reader would say it: 'a number', "'radius'", 'the end of the line'."""
+    if name in _DESCRIPTIONS:
+        return _DESCRIPTIONS[name]
+    literal = _literal_terminals().get(name)
+    return f"'{literal}'" if literal is not None else name.lower()
+
+
+def _expected_words(names) -> str:
+    described = sorted({describe_terminal(n) for n in names if not n.startswith("__")})
+    if len(described) > 12:
+        described = described[:12] + ["…"]
+    if len(described) <= 1:
+        return "".join(described)
+    return ", ".join(described[:-1]) + " or " + described[-1]
+
+
+def _span(file: str, lines: list[str], line: int, column: int, width: int) -> Span:
+    text = lines[line - 1] if 0 < line <= len(lines) else ""
+    return Span(file, line, column, column + max(1, width), text)
+
+
+def parse(text: str, file: str = "<script>") -> tree.Script:
+    """Parse a whole script.
+
+    Args:
+        text: the script's text.
+        file: the name to show in error messages.
+
+    Returns:
+        The syntax tree.
+
+    Raises:
+        LayoutSyntaxError: with file:line:column, a caret and what was expected.
+    """
+    source = text if text.endswith("\n") else text + "\n"
+    try:
+        parse_tree = parser().parse(source)
+    except UnexpectedInput as error:
+        raise _syntax_error(error, source, file) from None
+    return build_script(parse_tree, file, text)
+
+
+def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSyntaxError:
+    from .mistakes import label_for  # only needed on the error path
+
+    lines = source.split("\n")
+    if isinstance(error, UnexpectedCharacters):
+        char = source[error.pos_in_stream] if error.pos_in_stream < len(source) else ""
+        return LayoutSyntaxError(
+            f"unexpected character {char!r}",
+            _span(file, lines, error.line, error.column, 1),
+            expected=_expected_words(error.allowed or ()),
+        )
+    assert isinstance(error, UnexpectedToken)
+    token: Token = error.token
+    expected = set(error.expected)
+    if token.type == "$END":
+        line = len(lines) - 1
+        return LayoutSyntaxError(
+            "the script ends in the middle of a statement",
+            _span(file, lines, line, len(lines[line - 1]) + 1, 1),
+            expected=_expected_words(expected),
+        )
+    line, column, word = token.line, token.column, str(token)
+    if token.type == "_NL":
+        message, width = "the line ends too early", 1
+    elif word[:1].isalpha():
+        message, width = f"unexpected word {word!r}", len(word)
+    else:
+        message, width = f"unexpected {describe_terminal(token.type)}", len(word)
+    label = label_for(error, source)
+    hint = _did_you_mean(token, expected)
+    if label:
+        message = label
+    return LayoutSyntaxError(
+        message, _span(file, lines, line, column, width),
+        expected=_expected_words(expected), hint=hint,
+    )
+
+
+def _did_you_mean(token: Token, expected: set[str]) -> str | None:
+    word = str(token)
+    if not word[:1].isalpha():
+        return None
+    literals = _literal_terminals()
+    choices = [literals[n] for n in expected if n in literals and literals[n][:1].isalpha()]
+    close = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+    return f"did you mean '{close[0]}'?" if close else None

@@ -1,0 +1,84 @@
+"""The one comparison behind `expect`, the pytest plugin and users' own Python tests.
+
+`compare` decides whether an actual value meets an expectation and writes the failure message
+that shows both values with their units and the tolerance. `assert_quantity` is the same check
+for Python tests.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+__all__ = ["Outcome", "compare", "assert_quantity", "format_number"]
+
+
+def format_number(value: float, digits: int = 6) -> str:
+    """A number as reports print it: `digits` significant digits, no exponent for everyday
+    magnitudes, never 'inf' or 'nan' (callers pass only finite values)."""
+    if value == 0:
+        return "0"
+    text = f"{value:.{digits}g}"
+    if "e" in text:
+        mantissa, exponent = text.split("e")
+        return f"{mantissa}e{int(exponent)}"
+    return text
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """Whether one expectation holds, with the words to say so."""
+
+    passed: bool
+    actual: Any
+    message: str
+
+
+def _with_unit(value: float, unit: str) -> str:
+    return f"{format_number(value)} {unit}".rstrip()
+
+
+def compare(
+    actual: Any,
+    op: str,
+    expected: float,
+    tolerance: float | None = None,
+    relative: bool = False,
+    unit: str = "",
+    quantity: str = "value",
+) -> Outcome:
+    """Check `actual op expected` (with a tolerance for '=').
+
+    Args:
+        actual: the computed value, or an object whose str() says why there is none.
+        op: one of = < <= > >=.
+        expected: the expected value, in the same unit as `actual`.
+        tolerance: for '=': the allowed difference, absolute or (relative=True) a fraction.
+        relative: whether `tolerance` is a fraction of `expected`.
+        unit: the unit word both values are in (for the message).
+        quantity: the quantity's name (for the message).
+    """
+    if not isinstance(actual, (int, float)):
+        return Outcome(False, actual, f"{quantity} is {actual}; expected {op} "
+                       f"{_with_unit(expected, unit)}")
+    if op == "=":
+        allowed = abs(tolerance * expected) if relative else abs(tolerance or 0.0)
+        passed = abs(actual - expected) <= allowed * (1 + 1e-12)
+        tol_text = (f"± {format_number(tolerance * 100)}% (± {_with_unit(allowed, unit)})"
+                    if relative else f"± {_with_unit(allowed, unit)}")
+        detail = (f"{quantity} = {_with_unit(actual, unit)}, expected "
+                  f"{_with_unit(expected, unit)} {tol_text}; off by "
+                  f"{_with_unit(actual - expected, unit)}")
+    else:
+        passed = {"<": actual < expected, "<=": actual <= expected,
+                  ">": actual > expected, ">=": actual >= expected}[op]
+        detail = f"{quantity} = {_with_unit(actual, unit)}, expected {op} {_with_unit(expected, unit)}"
+    return Outcome(bool(passed), actual, detail)
+
+
+def assert_quantity(actual: Any, op: str, expected: float, tolerance: float | None = None,
+                    relative: bool = False, unit: str = "", quantity: str = "value") -> None:
+    """`compare`, raising AssertionError with the same message when it fails."""
+    outcome = compare(actual, op, expected, tolerance, relative, unit, quantity)
+    if not outcome.passed:
+        raise AssertionError(outcome.message)
