@@ -71,8 +71,20 @@ def _parse_function():
 
 
 def label_for(error: UnexpectedInput, source: str) -> str | None:
-    """The label of the typical mistake this error matches, or None."""
-    try:
-        return error.match_examples(_parse_function(), EXAMPLES, use_accepts=True)
-    except Exception:  # a label is a courtesy: never let it hide the real error
+    """The label of the typical mistake this error matches, or None.
+
+    Parser states are compared including stack depth, which depends on how many statements
+    came before; so the failing line is re-parsed on its own and that error is matched.
+    """
+    line = getattr(error, "line", 0)
+    lines = source.split("\n")
+    if not 0 < line <= len(lines):
         return None
+    try:
+        _parse_function()(lines[line - 1] + "\n")
+    except UnexpectedInput as alone:
+        try:
+            return alone.match_examples(_parse_function(), EXAMPLES, use_accepts=True)
+        except Exception:  # a label is a courtesy: never let it hide the real error
+            return None
+    return None

@@ -35,11 +35,22 @@ _DESCRIPTIONS = {
 }
 
 
+def grammar_text() -> str:
+    """The whole grammar: the core file, then each feature file (which adds its statements
+    with `%extend _statement: ...`), in name order."""
+    core = grammar_file()
+    parts = [core.read_text(encoding="utf-8")]
+    for extra in sorted(core.parent.glob("*.lark")):
+        if extra != core:
+            parts.append(extra.read_text(encoding="utf-8"))
+    return "\n".join(parts)
+
+
 @cache
 def parser() -> Lark:
     """The shared LALR parser (built once, cached on disk by lark)."""
     return Lark(
-        grammar_file().read_text(encoding="utf-8"),
+        grammar_text(),
         parser="lalr",
         strict=True,
         propagate_positions=True,
@@ -137,11 +148,9 @@ def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSynta
         message, width = f"unexpected {describe_terminal(token.type)}", len(word)
     label = label_for(error, source)
     hint = _did_you_mean(token, expected)
-    if label:
-        message = label
     return LayoutSyntaxError(
-        message, _span(file, lines, line, column, width),
-        expected=_expected_words(expected), hint=hint,
+        label or message, _span(file, lines, line, column, width),
+        expected=None if label else _expected_words(expected), hint=hint,
     )
 
 
