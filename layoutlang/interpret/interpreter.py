@@ -51,6 +51,7 @@ class Program:
     system: System
     expectations: tuple[Expectation, ...] = ()
     reports: tuple[tuple[str, ...], ...] = ()  # each `report`: quantity names (empty: all)
+    hazards: tuple[str, ...] = ()  # declared with `hazard`, in script order
     names: dict[str, Measure] = field(default_factory=dict, compare=False)
 
 
@@ -96,6 +97,7 @@ class _Interpreter:
         self.expect_nodes: list[tuple[t.Expect, tuple]] = []
         self.stop_context: tuple = ()
         self.reports: list[tuple[str, ...]] = []
+        self.hazards: list[str] = []
         self.using: tuple[Path, ...] = ()
         self.evaluator = ExpressionEvaluator(self.names, self.units, self.span, NumericBackend)
 
@@ -359,6 +361,18 @@ class _Interpreter:
         """report | report QUANTITY, QUANTITY, ..."""
         self.reports.append(tuple(self.quantity(q).name for q in node.quantities))
 
+    def statement_Hazard(self, node: t.Hazard) -> None:
+        """hazard laser | hazard eye | hazard sunlight"""
+        from ..hazards import CAUTIONS
+
+        if node.kind.text not in CAUTIONS:
+            close = difflib.get_close_matches(node.kind.text, list(CAUTIONS), n=1)
+            raise LayoutNameError(f"unknown hazard {node.kind.text!r}", self.span(node.kind),
+                                  expected="one of " + ", ".join(CAUTIONS),
+                                  hint=f"did you mean {close[0]!r}?" if close else None)
+        if node.kind.text not in self.hazards:
+            self.hazards.append(node.kind.text)
+
     def statement_Use(self, node: t.Use) -> None:
         """use LIBRARY | use "file.lay" """
         if node.is_file:
@@ -429,7 +443,7 @@ class _Interpreter:
             expectations.append(self.expectation(node))
         expectations = tuple(expectations)
         return Program(self.script.file, system, expectations, tuple(self.reports),
-                       dict(self.names))
+                       tuple(self.hazards), dict(self.names))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:

@@ -35,6 +35,14 @@ def _checks(checked: list[CheckResult]) -> list[dict]:
     } for r in checked]
 
 
+def _cautions(program: Program) -> list[str]:
+    if not program.hazards:
+        return []
+    from ..hazards import CAUTIONS, GENERAL
+
+    return [CAUTIONS[kind] for kind in program.hazards] + [GENERAL]
+
+
 def program_json(program: Program, results: FirstOrder, checked: list[CheckResult]) -> dict:
     system = program.system
     units = system.units
@@ -43,6 +51,7 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
         "title": system.title,
         "units": units,
         "sign_convention": SIGN_CONVENTION,
+        "cautions": _cautions(program),
         "boundaries": [{
             "name": b.name, "kind": b.kind,
             "radius": None if b.curvature == 0 else _round(1 / b.curvature),

@@ -20,7 +20,7 @@ __all__ = ["SIGN_CONVENTION", "layout_table", "first_order_table", "expectation_
 
 SIGN_CONVENTION = (
     "signs: light starts travelling in +z; distances are measured along the path and are "
-    "positive downstream; a radius is positive when its centre lies downstream of the vertex"
+    "positive downstream; a radius is positive when its centre lies in +z of the vertex"
 )
 
 
@@ -138,7 +138,12 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
     system = program.system
     title = system.title or program.file
     lines = [f"layout: {title}", f"  file: {program.file}; units: {system.units}",
-             f"  {SIGN_CONVENTION}", "", "boundaries"]
+             f"  {SIGN_CONVENTION}"]
+    if program.hazards:
+        from ..hazards import CAUTIONS, GENERAL
+
+        lines += [""] + [CAUTIONS[kind] for kind in program.hazards] + [GENERAL]
+    lines += ["", "boundaries"]
     lines += layout_table(system)
     lines += ["", "setting"] + _setting_lines(system)
     lines += ["", "first-order properties"] + first_order_table(results, system.units)

@@ -197,6 +197,9 @@ class _Builder(Transformer):
     def report(self, meta, items):
         return t.Report(tuple(q for q in items if q is not None), pos=_pos(meta))
 
+    def hazard(self, meta, items):
+        return t.Hazard(_ident(items[0]), pos=_pos(meta))
+
     def use_library(self, meta, items):
         return t.Use(str(items[0]), False, pos=_pos(meta))
 

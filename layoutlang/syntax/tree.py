@@ -15,7 +15,7 @@ __all__ = [
     "Statement", "Title", "Units", "Let", "MediumIndex", "StartMedium",
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
-    "Expect", "Report", "Use", "Script",
+    "Expect", "Report", "Hazard", "Use", "Script",
 ]
 
 
@@ -210,6 +210,13 @@ class Expect(Statement):
 @dataclass(frozen=True)
 class Report(Statement):
     quantities: tuple[Quantity, ...] = ()
+
+
+@dataclass(frozen=True)
+class Hazard(Statement):
+    """A declared hazard (laser, eye, sunlight): reports then carry the usual caution."""
+
+    kind: Ident
 
 
 @dataclass(frozen=True)
