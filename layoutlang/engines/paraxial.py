@@ -20,7 +20,7 @@ from typing import Any, Sequence
 from ..system import IDEAL, MIRROR, System
 
 __all__ = [
-    "Step", "REFRACTION", "TRANSFER", "steps_of", "trace", "matrix",
+    "Step", "REFRACTION", "TRANSFER", "steps_of", "trace", "trace_samples", "matrix",
     "Split", "split_at_stop", "formulas",
 ]
 
@@ -82,6 +82,25 @@ def trace(y: Number, nu: Number, steps: Sequence[Step]) -> tuple[Number, Number]
             y += step.value * nu
         else:
             nu -= step.value * y
+    return y, nu
+
+
+def trace_samples(y, nu, steps: Sequence[Step], chunk: int = 16384):
+    """Trace many rays (numpy arrays) through the steps, streaming cache-sized chunks.
+
+    Step values may be scalars or arrays of the same length as the rays (one layout per
+    sample, e.g. Monte-Carlo tolerance samples). Returns new arrays; the inputs are kept.
+    """
+    import numpy as np
+
+    y = np.array(y, dtype=float, copy=True)
+    nu = np.array(nu, dtype=float, copy=True)
+    per_sample = [np.ndim(step.value) > 0 for step in steps]
+    for start in range(0, len(y), chunk):
+        window = slice(start, start + chunk)
+        part = [Step(step.kind, step.value[window]) if sliced else step
+                for step, sliced in zip(steps, per_sample)]
+        trace(y[window], nu[window], part)
     return y, nu
 
 

@@ -1,0 +1,57 @@
+"""Benchmark: wall time of `layoutlang check` on a 10-surface numeric script.
+
+Reported as a ratio to `python -c "import numpy, lark"` measured in the same run (best of
+several runs each, interleaved so both see the same machine load). Goal <= 1.3.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+RUNS = 15
+
+SCRIPT = """# ten-surface numeric layout for the start-up benchmark
+medium crown index 1.52
+medium flint index 1.62
+object 500 before, height 10
+start in air
+""" + "".join(
+    f"surface s{i} radius {(-1) ** i * (40 + 3 * i)} into {'crown' if i % 2 == 0 else 'air'}\n"
+    f"gap {2 + i % 3}\n" for i in range(9)
+) + """surface s9 radius -80 into air
+stop at s4, diameter 8
+image at focus
+expect focal length > 0
+expect f-number < 100
+"""
+
+
+def timed(command: list[str]) -> float:
+    start = time.perf_counter()
+    subprocess.run(command, check=True, stdout=subprocess.DEVNULL)
+    return time.perf_counter() - start
+
+
+def main() -> float:
+    with tempfile.TemporaryDirectory() as folder:
+        script = Path(folder) / "ten.lay"
+        script.write_text(SCRIPT)
+        ours = [sys.executable, "-m", "layoutlang", "check", str(script)]
+        baseline = [sys.executable, "-c", "import numpy, lark"]
+        timed(ours)  # warm the parser cache and the file system
+        ours_times, base_times = [], []
+        for _ in range(RUNS):
+            ours_times.append(timed(ours))
+            base_times.append(timed(baseline))
+    ratio = min(ours_times) / min(base_times)
+    print(f"layoutlang check, 10 surfaces: {min(ours_times) * 1000:.0f} ms; "
+          f"import numpy, lark: {min(base_times) * 1000:.0f} ms; ratio = {ratio:.2f} (goal <= 1.3)")
+    return ratio
+
+
+if __name__ == "__main__":
+    main()
