@@ -96,10 +96,13 @@ def trace_samples(y, nu, steps: Sequence[Step], chunk: int = 16384):
     y = np.array(y, dtype=float, copy=True)
     nu = np.array(nu, dtype=float, copy=True)
     per_sample = [np.ndim(step.value) > 0 for step in steps]
+    varying = any(per_sample)
     for start in range(0, len(y), chunk):
         window = slice(start, start + chunk)
-        part = [Step(step.kind, step.value[window]) if sliced else step
-                for step, sliced in zip(steps, per_sample)]
+        part = steps
+        if varying:
+            part = [Step(step.kind, step.value[window]) if sliced else step
+                    for step, sliced in zip(steps, per_sample)]
         trace(y[window], nu[window], part)
     return y, nu
 
