@@ -52,6 +52,23 @@ class FirstOrder:
         return self.values[name]
 
 
+def _finite(values: dict[str, Value]) -> dict[str, Value]:
+    """The values with overflowed numbers (inf, NaN) turned into reasons, and -0.0 into 0.0.
+
+    Extreme inputs (radii near 1e-300, gaps near 1e300) overflow double precision inside the
+    matrix products; a report must then say so in words rather than print inf or nan.
+    """
+    found: dict[str, Value] = {}
+    for name, value in values.items():
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            if not math.isfinite(value):
+                value = Unavailable("out of range: the layout's numbers overflow double precision")
+            else:
+                value = value + 0.0  # -0.0 prints as 0 and serializes the same as 0.0
+        found[name] = value
+    return found
+
+
 def first_order(system: System) -> FirstOrder:
     """Evaluate all first-order properties of a numeric layout."""
     return _Evaluation(system).run()
@@ -77,7 +94,7 @@ class _Evaluation:
         self._conjugates()
         self._pupils_and_rays()
         self._lengths()
-        return FirstOrder(dict(self.values), self.afocal, tuple(self.notes))
+        return FirstOrder(_finite(self.values), self.afocal, tuple(self.notes))
 
     # focal lengths, focal, principal and nodal points
     def _cardinal_points(self) -> None:

@@ -93,7 +93,9 @@ class ExpressionEvaluator:
             result = getattr(self, "_" + type(node).__name__.lower())(node)
         except LayoutError:
             raise
-        except (ZeroDivisionError, ValueError, OverflowError, ArithmeticError) as error:
+        except OverflowError:
+            raise LayoutValueError("this expression's value is too large", self.span(node)) from None
+        except (ZeroDivisionError, ValueError, ArithmeticError) as error:
             raise LayoutValueError(
                 f"this expression cannot be evaluated: {_plain(error)}", self.span(node)
             ) from None

@@ -280,12 +280,13 @@ class _Interpreter:
         else:
             kind = IDEAL
             if node.strength_kind == "power":
-                power = self.power(node.strength, "a lens power")
+                power = self.invertible(self.power(node.strength, "a lens power"),
+                                        node.strength, "a lens power")
             else:
                 focal = self.length(node.strength, "a focal length")
                 if focal == 0:
                     raise LayoutValueError("a focal length cannot be zero", self.span(node.strength))
-                power = 1 / focal
+                power = 1 / self.invertible(focal, node.strength, "a focal length")
         clear = None
         if node.clear_diameter is not None:
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
@@ -300,14 +301,22 @@ class _Interpreter:
         if shape.kind == "curvature":
             measure = self.value(shape.value)
             if measure.bare or measure.dimension == (-1, 0):
-                return measure.value
+                return self.invertible(measure.value, shape.value, "a curvature")
             raise LayoutUnitError(f"a curvature is 1/length, not {measure.describe()}",
                                   self.span(shape.value))
         radius = self.length(shape.value, "a radius")
         if radius == 0:
             raise LayoutValueError("a radius cannot be zero", self.span(shape.value),
                                    hint="write 'flat' for a plane surface")
-        return 1 / radius
+        return 1 / self.invertible(radius, shape.value, "a radius")
+
+    def invertible(self, value: Any, node: t.Node, what: str) -> Any:
+        """`value` unless it is so close to zero that its reciprocal overflows (reports print
+        both radius and curvature, so both must be finite)."""
+        if value != 0 and not math.isfinite(1 / value):
+            raise LayoutValueError(f"{what} this close to zero cannot be computed with",
+                                   self.span(node))
+        return value
 
     def statement_Gap(self, node: t.Gap) -> None:
         """gap LENGTH"""

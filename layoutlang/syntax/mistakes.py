@@ -14,16 +14,18 @@ from lark.exceptions import UnexpectedInput
 __all__ = ["label_for", "EXAMPLES"]
 
 EXAMPLES: dict[str, list[str]] = {
-    "a radius needs a value, e.g. 'radius 52.9' or 'radius -38.1 mm'": [
+    # radius and curvature leave the parser in the same state, so they share one label
+    "a radius or curvature needs a value, e.g. 'radius 52.9', 'radius -38.1 mm' or "
+    "'curvature 0.02'": [
         "surface front radius into glass\n",
         "surface radius into glass\n",
         "surface front radius\n",
         "mirror primary radius\n",
         "surface front radius , clear diameter 4\n",
-    ],
-    "a curvature needs a value, e.g. 'curvature 0.02'": [
         "surface front curvature into glass\n",
         "surface curvature\n",
+        "surface front curvature\n",
+        "mirror primary curvature\n",
     ],
     "a surface needs its shape: 'radius R', 'curvature C' or 'flat'": [
         "surface front into glass\n",
@@ -33,7 +35,7 @@ EXAMPLES: dict[str, list[str]] = {
         "mirror\n",
         "mirror m\n",
     ],
-    "a gap needs a length, e.g. 'gap 5.2'": ["gap\n", "gap into\n"],
+    "a gap needs a length, e.g. 'gap 5.2'": ["gap\n"],
     "say where the object is: 'object at infinity' or 'object 250 before'": [
         "object 250\n",
         "object\n",

@@ -131,7 +131,7 @@ def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSynta
         )
     assert isinstance(error, UnexpectedToken)
     token: Token = error.token
-    expected = set(error.expected)
+    expected = _acceptable(error)
     if token.type == "$END":
         line = len(lines) - 1
         return LayoutSyntaxError(
@@ -145,13 +145,27 @@ def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSynta
     elif word[:1].isalpha():
         message, width = f"unexpected word {word!r}", len(word)
     else:
-        message, width = f"unexpected {describe_terminal(token.type)}", len(word)
+        message, width = f"{describe_terminal(token.type)} is not expected here", len(word)
     label = label_for(error, source)
     hint = _did_you_mean(token, expected)
     return LayoutSyntaxError(
         label or message, _span(file, lines, line, column, width),
         expected=None if label else _expected_words(expected), hint=hint,
     )
+
+
+def _acceptable(error: UnexpectedToken) -> set[str]:
+    """The terminals the parser would really accept here.
+
+    `error.expected` is the LALR state's lookahead set, which after an expression merges
+    everything that may follow any expression anywhere (')', 'before', 'within', ...); asking
+    the interactive parser filters that down to what fits this statement.
+    """
+    try:
+        found = set(error.interactive_parser.accepts())
+    except Exception:  # the precise set is a courtesy; fall back to the lookahead set
+        found = set()
+    return found or set(error.expected)
 
 
 def _did_you_mean(token: Token, expected: set[str]) -> str | None:
