@@ -98,7 +98,10 @@ class _Interpreter:
         self.stop_context: tuple = ()
         self.reports: list[tuple[str, ...]] = []
         self.hazards: list[str] = []
-        self.using: tuple[Path, ...] = ()
+        main = Path(script.file)
+        # the chain of files being used right now (a cycle check), and every file used once
+        self.using: tuple[Path, ...] = (main.resolve(),) if main.is_file() else ()
+        self.used: set[Path] = set()
         self.evaluator = ExpressionEvaluator(self.names, self.units, self.span, NumericBackend)
 
     # --- helpers -----------------------------------------------------------------------------
@@ -397,8 +400,14 @@ class _Interpreter:
                     f"no library named {node.target!r}", self.span(node),
                     expected="one of " + ", ".join(known) if known else None,
                     hint=f"did you mean {close[0]!r}?" if close else None)
+        path = path.resolve()
         if path in self.using:
-            raise LayoutValueError(f"{node.target} uses itself", self.span(node))
+            chain = " -> ".join(p.name for p in self.using[self.using.index(path):] + (path,))
+            raise LayoutValueError(f"these files use each other in a circle: {chain}",
+                                   self.span(node), hint="move what both need into a third file")
+        if path in self.used:  # `use` is idempotent: a part used twice is loaded once
+            return
+        self.used.add(path)
         try:
             text = path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as error:
