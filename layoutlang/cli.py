@@ -1,4 +1,5 @@
-"""The command line: `layoutlang run FILE` and `layoutlang check FILE...`.
+"""The command line: `layoutlang run FILE`, `layoutlang check FILE...`, and the workflow
+commands `format`, `draw` and `report` (in `workflow.py`).
 
 Exit status: 0 every expectation holds, 1 some fail, 2 usage or script error. Errors are
 printed as the messages of `LayoutError`; a Python traceback is never shown to a user.
@@ -31,6 +32,10 @@ def _parser() -> argparse.ArgumentParser:
     check = commands.add_parser("check", help="check the expectations of one or more scripts")
     check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
     check.add_argument("--json", action="store_true", help="machine-readable output")
+    check.add_argument("--junit", metavar="FILE", help="also write JUnit XML to FILE")
+    from .workflow import add_commands  # format, draw, report
+
+    add_commands(commands)
     return parser
 
 
@@ -39,7 +44,11 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command == "run":
             return _run(args.file, args.json)
-        return _check(args.files, args.json)
+        if args.command != "check":
+            from .workflow import run_command
+
+            return run_command(args)
+        return _check(args.files, args.json, args.junit)
     except KeyboardInterrupt:
         return 130
     except BrokenPipeError:
@@ -73,20 +82,26 @@ def _run(path: str, as_json: bool) -> int:
     return EXIT_OK if all(r.passed for r in checked) else EXIT_FAILED
 
 
-def _check(paths: Sequence[str], as_json: bool) -> int:
+def _check(paths: Sequence[str], as_json: bool, junit: str | None = None) -> int:
+    from .reports.colour import paint, use_colour
+
+    colour = use_colour(sys.stdout)
     status = EXIT_OK
     documents = []
+    outcomes = []  # for --junit
     for path in paths:
         try:
             program, _, checked = _evaluate(path)
         except LayoutError as error:
             status = EXIT_ERROR
+            outcomes.append((path, [], str(error)))
             if as_json:
                 documents.append({"file": path, "error": str(error)})
             else:
                 print(error, file=sys.stderr)
-                print(f"{path}: error, not checked")
+                print(f"{path}: {paint('error', 'error', colour)}, not checked")
             continue
+        outcomes.append((path, checked, None))
         failed = [r for r in checked if not r.passed]
         if failed and status == EXIT_OK:
             status = EXIT_FAILED
@@ -96,12 +111,18 @@ def _check(paths: Sequence[str], as_json: bool) -> int:
             documents.append(check_json(program, checked))
             continue
         if failed:
-            print(f"{path}: {len(failed)} of {len(checked)} expectations FAIL")
+            print(f"{path}: {len(failed)} of {len(checked)} expectations "
+                  f"{paint('FAIL', 'bad', colour)}")
             for result in failed:
                 e = result.expectation
                 print(f"  {e.span.file}:{e.span.line}:{e.span.column}: {result.outcome.message}")
         else:
-            print(f"{path}: all {len(checked)} expectations hold")
+            print(f"{path}: all {len(checked)} expectations {paint('hold', 'good', colour)}")
+    if junit:
+        from .workflow import write_junit
+
+        if not write_junit(junit, outcomes):
+            return EXIT_ERROR
     if as_json:
         from .reports.machine import dumps
 

@@ -1,0 +1,82 @@
+"""Completion from the grammar itself plus the names the session knows.
+
+The LALR parser is fed what stands before the word being typed (`parse_interactive`,
+`exhaust_lexer`) and asked which terminals it `accepts()` next: fixed words are offered as
+themselves; where a name may stand, the names in scope are offered (and, after `expect` or
+`report`, the quantity names).
+"""
+
+from __future__ import annotations
+
+import re
+from functools import cache
+from typing import Callable, Iterable, Iterator
+
+from lark.exceptions import LarkError
+from prompt_toolkit.completion import CompleteEvent, Completer, Completion
+from prompt_toolkit.document import Document
+
+from ..quantities import ALIASES, QUANTITIES
+from ..syntax.parser import parser
+from .validator import join_lines
+
+__all__ = ["LayoutCompleter", "next_terminals", "candidates"]
+
+_PARTIAL = re.compile(r"[A-Za-z_][A-Za-z0-9_-]*$")
+
+
+@cache
+def _literals() -> dict[str, str]:
+    return {term.name: term.pattern.value for term in parser().terminals
+            if term.pattern.type == "str"}
+
+
+def next_terminals(text: str) -> set[str]:
+    """The terminal names the grammar accepts after `text` (empty when `text` is wrong)."""
+    try:
+        interactive = parser().parse_interactive(text)
+        interactive.exhaust_lexer()
+        return set(interactive.accepts())
+    except LarkError:
+        return set()
+
+
+def candidates(text: str, names: Iterable[str] = ()) -> set[str]:
+    """Every word that may come next after `text`."""
+    found = set()
+    literals = _literals()
+    for terminal in next_terminals(text):
+        word = literals.get(terminal)
+        if word is not None and word[:1].isalpha():
+            found.add(word)
+        elif terminal == "NAME":
+            found.update(names)
+            first = text.split()[:1]
+            if first and first[0] in ("expect", "report"):
+                found.update(QUANTITIES)
+                found.update(ALIASES)
+    return found
+
+
+class LayoutCompleter(Completer):
+    """Offers what the grammar allows at the cursor."""
+
+    def __init__(self, names: Callable[[], Iterable[str]] = lambda: (),
+                 pending: Callable[[], str] = lambda: "") -> None:
+        self.names = names
+        self.pending = pending
+
+    def get_completions(self, document: Document,
+                        complete_event: CompleteEvent) -> Iterator[Completion]:
+        before = document.text_before_cursor
+        match = _PARTIAL.search(before)
+        partial = match.group() if match else ""
+        head = join_lines(self.pending(), before[: len(before) - len(partial)])
+        # a quantity may be several words: complete the whole name from its first word on
+        words_typed = head.split()
+        quantity_start = len(words_typed) > 0 and words_typed[0] in ("expect", "report")
+        for word in sorted(candidates(head, self.names())):
+            if word.startswith(partial) and word != partial:
+                yield Completion(word, start_position=-len(partial),
+                                 display_meta="quantity" if quantity_start and " " in word
+                                 else None)

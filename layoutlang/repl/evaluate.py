@@ -1,0 +1,76 @@
+"""Evaluate the session's statements: the Program, its first-order results and its checks.
+
+The statements are written back as canonical text and parsed again, so every error points at a
+line of the script the session would save. A layout still being built (no surface yet, or a gap
+waiting for the next surface) is not an error: it is a snapshot without results, and the reason.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+from ..checks import CheckResult, check_program
+from ..engines.firstorder import FirstOrder, first_order
+from ..interpret import interpreter
+from ..interpret.interpreter import Program
+from ..syntax import tree as t
+from ..syntax.parser import parse
+from ..syntax.unparse import unparse
+
+__all__ = ["Snapshot", "evaluate", "SESSION_FILE"]
+
+#: The file name errors in the session's own statements mention.
+SESSION_FILE = "<session>"
+
+
+@dataclass(frozen=True)
+class Snapshot:
+    """The session's layout at one moment: results when complete, else why not."""
+
+    statements: tuple[t.Statement, ...]
+    program: Program | None = None
+    results: FirstOrder | None = None
+    checked: tuple[CheckResult, ...] = ()
+    incomplete: str | None = None
+
+    @property
+    def complete(self) -> bool:
+        return self.program is not None
+
+
+def _incomplete_reason(statements: tuple[t.Statement, ...]) -> str | None:
+    path = [s for s in statements if isinstance(s, (t.BoundaryStatement, t.Gap))]
+    if not any(isinstance(s, t.BoundaryStatement) for s in path):
+        return "no surface, mirror or lens yet"
+    if isinstance(path[-1], t.Gap):
+        return "the last gap waits for the next surface"
+    return None
+
+
+def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None) -> Snapshot:
+    """Interpret the statements and evaluate the layout.
+
+    Args:
+        statements: the layout statements (no session commands).
+        base: the folder `use "file"` is resolved against.
+
+    Returns:
+        The snapshot (with results, or the reason the layout is not complete yet).
+
+    Raises:
+        LayoutError: a statement is wrong (the caller keeps its earlier state).
+    """
+    script = parse(unparse(statements), SESSION_FILE)
+    reason = _incomplete_reason(script.statements)
+    if reason is None:
+        program = interpreter.interpret(script, base=base)
+        results = first_order(program.system)
+        checked = tuple(check_program(program, results))
+        return Snapshot(tuple(statements), program, results, checked)
+    # Still being built: run every statement so a wrong one is caught now, but skip the
+    # whole-layout checks that only make sense once it is complete.
+    run = interpreter._Interpreter(script, base or Path.cwd())  # the statement-level half
+    for statement in script.statements:
+        run.execute(statement)
+    return Snapshot(tuple(statements), incomplete=reason)

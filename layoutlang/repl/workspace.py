@@ -1,0 +1,221 @@
+"""The session's layout and its past: run one typed input, keep undo/redo, save as a script.
+
+No terminal here (the prompt lives in `session.py`), so everything the session does can be
+driven and checked from plain Python. The layout is a tuple of syntax-tree statements; every
+accepted input makes a new tuple and a new, immutable System. A rejected input changes nothing.
+"""
+
+from __future__ import annotations
+
+import difflib
+import os
+import tempfile
+from pathlib import Path
+
+from ..errors import LayoutError, LayoutFileError, LayoutValueError
+from ..syntax import tree as t
+from ..syntax.parser import parse
+from ..syntax.unparse import unparse
+from .changes import describe_changes
+from .edits import Statements, apply_edit, scope_names
+from .evaluate import Snapshot, evaluate
+
+__all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP"]
+
+#: Statements that ask for output and are answered at once, not added to the layout.
+QUESTIONS = frozenset({"Report", "Derive", "Solve"})
+
+HELP = """\
+Type any statement of the language; it is added to the layout. A statement that is not
+finished (e.g. ends with a comma) continues on the next line; an empty line ends it.
+Edits by name:
+  change front radius to 50          change crown index to 1.52
+  change front to flat               change front clear diameter to 20
+  change lens1 focal length to 80    change front medium to flint
+  change gap after front to 6        change object distance to 300
+  change stop diameter to 12         change focal_goal to 81
+  insert surface window flat into glass before joint
+  insert gap 2 after window          remove window     remove gap after front
+  rename front to entry
+Going back and forth: undo, redo.   Looking: show table | script | results | expectations.
+Questions (answered, not kept): report [QUANTITY, ...]. Keeping: save, save "file.lay".
+Leaving: leave, or Ctrl-D (asks first when there are unsaved edits). Ctrl-C clears the line."""
+
+
+class LeaveRequested(Exception):
+    """The user typed `leave`."""
+
+
+class Workspace:
+    """The layout being edited, with its undo and redo stacks and the file it belongs to."""
+
+    def __init__(self, statements: Statements = (), path: Path | None = None,
+                 base: Path | None = None) -> None:
+        """Start from statements (e.g. a loaded script).
+
+        Raises:
+            LayoutError: the statements do not make a valid (possibly unfinished) layout.
+        """
+        self.path = path
+        self.base = base or (path.parent if path else None)
+        self.snapshot: Snapshot = evaluate(tuple(statements), self.base)
+        self.undo_stack: list[Snapshot] = []
+        self.redo_stack: list[Snapshot] = []
+        self.saved: Statements = tuple(statements) if path and path.exists() else ()
+
+    @classmethod
+    def open(cls, path: Path) -> Workspace:
+        """The workspace of a script file (a file that does not exist yet starts empty)."""
+        if not path.exists():
+            return cls((), path)
+        try:
+            text = path.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as error:
+            raise LayoutFileError(f"cannot read {path}: {error}") from None
+        return cls(parse(text, str(path)).statements, path)
+
+    # --- state ------------------------------------------------------------------------------
+    @property
+    def statements(self) -> Statements:
+        return self.snapshot.statements
+
+    @property
+    def unsaved(self) -> bool:
+        """Whether the layout differs from what was last loaded or saved."""
+        return self.statements != self.saved
+
+    def names(self) -> list[str]:
+        return scope_names(self.statements)
+
+    # --- running input ----------------------------------------------------------------------
+    def run(self, text: str) -> str:
+        """Run one input (one or more statements) and return what to print.
+
+        Errors are returned as text, never raised (except `LeaveRequested`); a failing
+        statement leaves the layout as it was.
+        """
+        try:
+            script = parse(text, "<input>")
+        except LayoutError as error:
+            return str(error)
+        out = []
+        for statement in script.statements:
+            try:
+                out.append(self.execute(statement, text))
+            except LayoutError as error:
+                out.append(str(error))
+                break
+        return "\n".join(part for part in out if part)
+
+    def execute(self, statement: t.Statement, text: str = "") -> str:
+        """Run one parsed statement; LayoutError leaves the state untouched."""
+        name = type(statement).__name__
+        if isinstance(statement, t.Undo):
+            return self._step(self.undo_stack, self.redo_stack, "undone")
+        if isinstance(statement, t.Redo):
+            return self._step(self.redo_stack, self.undo_stack, "redone")
+        if isinstance(statement, t.Show):
+            return self.show(statement.what)
+        if isinstance(statement, t.Save):
+            return self.save(Path(statement.path) if statement.path else None)
+        if isinstance(statement, t.Help):
+            return HELP
+        if isinstance(statement, t.Leave):
+            raise LeaveRequested()
+        if isinstance(statement, (t.Change, t.Insert, t.Remove, t.Rename)):
+            statements, said = apply_edit(self.statements, statement, text)
+            return self._commit(statements, said)
+        if name in QUESTIONS:
+            return self.answer(statement)
+        return self._commit(self.statements + (statement,), "")
+
+    def _commit(self, statements: Statements, said: str) -> str:
+        after = evaluate(statements, self.base)  # raises: nothing below runs, nothing changes
+        before = self.snapshot
+        self.undo_stack.append(before)
+        self.redo_stack.clear()
+        self.snapshot = after
+        return "\n".join(([said] if said else []) + describe_changes(before, after))
+
+    def _step(self, source: list[Snapshot], target: list[Snapshot], word: str) -> str:
+        if not source:
+            return f"nothing to be {word}"
+        before = self.snapshot
+        target.append(before)
+        self.snapshot = source.pop()
+        return "\n".join([word] + describe_changes(before, self.snapshot))
+
+    def answer(self, statement: t.Statement) -> str:
+        """The output a question (e.g. `report focal length`) adds to the full report."""
+        from ..reports.text import full_report
+
+        if not self.snapshot.complete:
+            raise LayoutValueError(f"the layout is not complete yet: {self.snapshot.incomplete}")
+        asked = evaluate(self.statements + (statement,), self.base)
+        old = self.text_report(self.snapshot).splitlines()
+        new = full_report(asked.program, asked.results, list(asked.checked)).splitlines()
+        added = []
+        for op, _, _, j1, j2 in difflib.SequenceMatcher(None, old, new,
+                                                         autojunk=False).get_opcodes():
+            if op in ("insert", "replace"):
+                added += new[j1:j2]
+        return "\n".join(line for line in added if line.strip()) or "(nothing new to report)"
+
+    # --- looking ----------------------------------------------------------------------------
+    @staticmethod
+    def text_report(snapshot: Snapshot) -> str:
+        from ..reports.text import full_report
+
+        return full_report(snapshot.program, snapshot.results, list(snapshot.checked))
+
+    def show(self, what: str) -> str:
+        """`show table | script | results | expectations`."""
+        if what == "script":
+            return unparse(self.statements).rstrip("\n") or "(no statements yet)"
+        if not self.snapshot.complete:
+            return f"the layout is not complete yet: {self.snapshot.incomplete}"
+        from ..reports.text import expectation_lines, layout_table
+
+        if what == "table":
+            return "\n".join(layout_table(self.snapshot.program.system))
+        if what == "expectations":
+            return "\n".join(expectation_lines(list(self.snapshot.checked)))
+        return self.text_report(self.snapshot).rstrip("\n")
+
+    # --- keeping ----------------------------------------------------------------------------
+    def save(self, path: Path | None = None) -> str:
+        """Write the layout as a canonical script, atomically (temp file, then rename)."""
+        path = path or self.path
+        if path is None:
+            raise LayoutValueError("no file to save to yet",
+                                   expected='a file name: save "my_layout.lay"')
+        text = unparse(self.statements)
+        if parse(text, str(path)).statements != self.statements:  # never write what won't load
+            raise LayoutValueError("the layout cannot be written back as a script exactly")
+        write_atomically(path, text)
+        self.path, self.saved = path, self.statements
+        if self.base is None:
+            self.base = path.parent
+        return f"saved {len(self.statements)} statements to {path}"
+
+
+def write_atomically(path: Path, text: str) -> None:
+    """Write `text` to `path` so that a reader sees the old file or the new one, never half.
+
+    Raises:
+        LayoutFileError: the folder cannot be written.
+    """
+    folder = path.parent if str(path.parent) else Path(".")
+    try:
+        handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+        try:
+            with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as stream:
+                stream.write(text)
+                stream.flush()
+                os.fsync(stream.fileno())
+            os.replace(temporary, path)
+        except BaseException:
+            Path(temporary).unlink(missing_ok=True)
+            raise
+    except OSError as error:
+        raise LayoutFileError(f"cannot save to {path}: {error.strerror or error}") from None

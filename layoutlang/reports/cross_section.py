@@ -1,0 +1,318 @@
+"""The numbers behind a drawing: where each boundary, element, stop and ray sits in the plane.
+
+Pure geometry (no plotting), so it can be tested without matplotlib. Positions are global: z
+along the axis (light starts in +z), y up. Each vertex sits where the gaps, walked along the
+current sense of travel, put it, so a mirror folds the path back on itself exactly as the light
+goes. Rays are the paraxial marginal ray (axial object point to the edge of the stop) and chief
+ray (edge of the field through the centre of the stop), drawn ending on the surface profiles.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..engines import paraxial
+from ..engines.firstorder import FirstOrder, Unavailable, first_order
+from ..engines.paraxial import TRANSFER, Step
+from ..system import IDEAL, MIRROR, System
+
+__all__ = ["Profile", "Element", "RayPath", "CrossSection", "cross_section", "sag"]
+
+#: Extra room beyond the ray bundle when no clear diameter is given (the glass is never cut
+#: exactly at the ray): common practice in drawings, the value is ours.
+APERTURE_MARGIN = 1.1
+
+
+def sag(curvature: float, height: np.ndarray) -> np.ndarray:
+    """The sag of a sphere of this curvature at these heights (0 for a plane)."""
+    height = np.asarray(height, dtype=float)
+    if curvature == 0:
+        return np.zeros_like(height)
+    root = np.sqrt(np.clip(1 - (curvature * height) ** 2, 0, None))
+    return curvature * height ** 2 / (1 + root)
+
+
+@dataclass(frozen=True)
+class Profile:
+    """One boundary as drawn: its vertex, curvature and the semi-aperture it is drawn to."""
+
+    name: str
+    kind: str
+    z: float
+    curvature: float
+    semi_aperture: float
+    sense_in: int  # the sense of travel of the light arriving at it
+    from_clear_diameter: bool
+    power: float = 0.0
+
+    def points(self, samples: int = 41) -> tuple[np.ndarray, np.ndarray]:
+        """(z, y) along the profile from -semi_aperture to +semi_aperture."""
+        y = np.linspace(-self.semi_aperture, self.semi_aperture, samples)
+        return self.z + sag(self.curvature, y), y
+
+    def z_at(self, y: float) -> float:
+        """Where the profile is at height y (clamped to the aperture: a flat rim beyond)."""
+        limited = max(-self.semi_aperture, min(self.semi_aperture, y))
+        return float(self.z + sag(self.curvature, np.array(limited)))
+
+
+@dataclass(frozen=True)
+class Element:
+    """A piece of material between two boundaries (a lens element or a plate)."""
+
+    first: int
+    second: int
+    medium: str
+    edge: float  # the semi-height of its rim
+
+    def outline(self, profiles: list[Profile], samples: int = 41) -> tuple[np.ndarray, np.ndarray]:
+        """A closed outline: down the first face, up the second, with flat rims where one
+        face is smaller than the rim."""
+        y = np.linspace(-self.edge, self.edge, samples)
+        a, b = profiles[self.first], profiles[self.second]
+        za = np.array([a.z_at(v) for v in y])
+        zb = np.array([b.z_at(v) for v in y[::-1]])
+        return np.concatenate([za, zb, za[:1]]), np.concatenate([y, y[::-1], y[:1]])
+
+
+@dataclass(frozen=True)
+class RayPath:
+    """One drawn ray: its role (marginal or chief), wavelength label and (z, y) points."""
+
+    role: str
+    label: str
+    z: tuple[float, ...]
+    y: tuple[float, ...]
+    #: for a virtual image: the backward extension from the last boundary to the image
+    virtual_z: tuple[float, ...] = ()
+    virtual_y: tuple[float, ...] = ()
+
+
+@dataclass(frozen=True)
+class CrossSection:
+    """Everything a drawing shows, in global coordinates."""
+
+    title: str
+    units: str
+    profiles: list[Profile]
+    elements: list[Element]
+    rays: list[RayPath]
+    stop: tuple[float, float] | None  # (z, semi-diameter)
+    image: tuple[float, float] | None  # (z, semi-height of the drawn image plane)
+    object_plane: tuple[float, float] | None  # (z, height) when the object is drawn
+    notes: list[str] = field(default_factory=list)
+
+    def extent(self) -> tuple[float, float, float]:
+        """(z min, z max, largest |y|) of everything drawn."""
+        zs = [p.z for p in self.profiles]
+        ys = [p.semi_aperture for p in self.profiles]
+        for ray in self.rays:
+            zs.extend(ray.z + ray.virtual_z)
+            ys.extend(abs(v) for v in ray.y + ray.virtual_y)
+        for item in (self.stop, self.image, self.object_plane):
+            if item is not None:
+                zs.append(item[0])
+                ys.append(abs(item[1]))
+        return min(zs), max(zs), max(ys) if ys else 1.0
+
+
+def _vertices(system: System) -> list[float]:
+    senses = system.directions()
+    z = [0.0]
+    for i, gap in enumerate(system.gaps):
+        z.append(z[-1] + senses[i + 1] * float(gap))
+    return z
+
+
+def _heights(system: System, y0: float, nu0: float) -> list[float]:
+    """Paraxial ray height at every vertex, from (y, nu) at the first vertex."""
+    heights = []
+    y, nu = y0, nu0
+    for step in paraxial.steps_of(system):
+        if step.kind is TRANSFER:
+            y = y + step.value * nu
+        else:
+            heights.append(y)
+            nu = nu - step.value * y
+    return heights
+
+
+def _exit(system: System, y0: float, nu0: float) -> tuple[float, float]:
+    return paraxial.trace(y0, nu0, paraxial.steps_of(system))
+
+
+def _stop_z(system: System, vertices: list[float]) -> float | None:
+    stop = system.stop
+    if stop is None:
+        return None
+    if stop.after < 0:
+        return vertices[0] + float(stop.offset)
+    return vertices[stop.after] + system.directions()[stop.after + 1] * float(stop.offset)
+
+
+def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | None,
+                                                        tuple[float, float] | None, list[str]]:
+    """(y, nu) at the first vertex of the marginal and the chief ray (None when undefined)."""
+    notes: list[str] = []
+    n0 = system.indices()[0]
+    obj = system.object
+    object_steps = [] if obj.at_infinity else [Step(TRANSFER, float(obj.distance) / n0)]
+    if system.stop is None:
+        notes.append("no stop given: the rays are drawn through the edge of the first boundary")
+        first = system.boundaries[0]
+        radius = float(first.clear_diameter) / 2 if first.clear_diameter is not None else None
+        front: list[Step] = []
+    else:
+        stop_diameter = results["stop diameter"]
+        radius = None if isinstance(stop_diameter, Unavailable) else stop_diameter / 2
+        front = paraxial.split_at_stop(system).front
+    if radius is None:
+        if system.stop is not None:
+            notes.append(f"marginal ray not drawn: {results['stop diameter']}")
+        return None, None, notes
+    a1, b1, _, _ = paraxial.matrix(front) if front else (1.0, 0.0, 0.0, 1.0)
+    marginal = chief = None
+    if obj.at_infinity:
+        if a1 != 0:
+            marginal = (radius / a1, 0.0)
+            nu = -n0 * math.tan(float(obj.field_angle))
+            if nu != 0:
+                chief = (-b1 * nu / a1, nu)
+    else:
+        y_unit, _ = paraxial.trace(0.0, 1.0, object_steps + front)
+        if y_unit != 0:
+            nu = radius / y_unit
+            marginal = paraxial.trace(0.0, nu, object_steps)
+        ya, _ = paraxial.trace(1.0, 0.0, object_steps + front)
+        yb = y_unit
+        if yb != 0 and obj.height != 0:
+            nu = -ya * float(obj.height) / yb
+            chief = paraxial.trace(float(obj.height), nu, object_steps)
+    return marginal, chief, notes
+
+
+def cross_section(system: System, results: FirstOrder | None = None) -> CrossSection:
+    """Lay out a numeric System in the plane.
+
+    Args:
+        system: the layout (numbers, not symbols).
+        results: its first-order properties, if already computed.
+
+    Returns:
+        The profiles, elements, rays, stop and image plane in global coordinates.
+    """
+    results = results or first_order(system)
+    vertices = _vertices(system)
+    senses = system.directions()
+    n0 = system.indices()[0]
+    marginal, chief, notes = _rays(system, results)
+    starts = [("marginal", marginal), ("marginal", _flip(marginal)), ("chief", chief)]
+    starts = [(role, start) for role, start in starts if start is not None]
+    heights = {id(start): _heights(system, *start) for _, start in starts}
+
+    # apertures: the clear diameter, else the ray bundle at that boundary plus a margin
+    profiles: list[Profile] = []
+    plane = results["image plane distance"]
+    length_scale = max(abs(max(vertices) - min(vertices)),
+                       0 if isinstance(plane, Unavailable) else abs(float(plane)), 1e-9)
+    for i, boundary in enumerate(system.boundaries):
+        if boundary.clear_diameter is not None:
+            semi, given = float(boundary.clear_diameter) / 2, True
+        else:
+            m = abs(_heights_at(heights, marginal, i))
+            c = abs(_heights_at(heights, chief, i))
+            semi, given = (m + c) * APERTURE_MARGIN, False
+            if semi == 0:
+                semi = 0.1 * length_scale
+        curvature = float(boundary.curvature)
+        if curvature and semi * abs(curvature) >= 1:  # beyond a hemisphere: draw the hemisphere
+            semi = 0.999 / abs(curvature)
+            notes.append(f"{boundary.name}: drawn to a hemisphere (the aperture exceeds it)")
+        profiles.append(Profile(boundary.name, boundary.kind, vertices[i], curvature, semi,
+                                senses[i], given, float(boundary.power or 0)))
+
+    # elements: material other than the starting medium between two refracting boundaries
+    elements = []
+    ambient = {system.start_medium, "air", "vacuum"}
+    for i in range(len(system.boundaries) - 1):
+        boundary, following = system.boundaries[i], system.boundaries[i + 1]
+        if boundary.kind in (MIRROR, IDEAL) or following.kind in (MIRROR, IDEAL):
+            continue
+        if boundary.medium_after in ambient:
+            continue
+        edge = max(profiles[i].semi_aperture, profiles[i + 1].semi_aperture)
+        elements.append(Element(i, i + 1, boundary.medium_after, edge))
+
+    # where the drawing begins and ends along the path
+    z_first, z_last = vertices[0], vertices[-1]
+    lead = 0.3 * length_scale if length_scale > 1e-6 else 10 * max(
+        p.semi_aperture for p in profiles)
+    object_plane = None
+    # rays from a distant object start upstream of everything the path folds back over
+    upstream = z_first - min(vertices)
+    if system.object.at_infinity:
+        before = lead + upstream
+    else:
+        distance = float(system.object.distance)
+        if 0 < distance <= 2.5 * max(length_scale, lead):
+            before = distance
+            object_plane = (z_first - distance, float(system.object.height))
+        else:
+            before = lead + upstream
+            if distance <= 0:
+                notes.append("the object is virtual (after the first boundary): not drawn")
+            else:
+                notes.append("the object is far away: the rays are cut short before the layout")
+    image = None
+    sense_k = senses[-1]
+    if isinstance(plane, Unavailable):
+        after = lead
+        notes.append(f"image plane not drawn: {plane}")
+    else:
+        after = float(plane)
+    nk = system.indices()[-1]
+
+    rays = []
+    for role, start in starts:
+        y0, nu0 = start
+        zs = [z_first - before]
+        ys = [y0 - nu0 / n0 * before]
+        for i, y in enumerate(heights[id(start)]):
+            zs.append(profiles[i].z_at(y))  # beyond the aperture: at the plane of the rim
+            ys.append(y)
+        y_end, nu_end = _exit(system, y0, nu0)
+        virtual_z: tuple[float, ...] = ()
+        virtual_y: tuple[float, ...] = ()
+        if after < 0:  # a virtual image: the light goes on; its extension meets the image
+            virtual_z = (zs[-1], z_last + sense_k * after)
+            virtual_y = (ys[-1], y_end + nu_end / nk * after)
+            zs.append(z_last + sense_k * lead)
+            ys.append(y_end + nu_end / nk * lead)
+        else:
+            zs.append(z_last + sense_k * after)
+            ys.append(y_end + nu_end / nk * after)
+        rays.append(RayPath(role, "", tuple(zs), tuple(ys), virtual_z, virtual_y))
+    if not isinstance(plane, Unavailable):
+        tips = [abs(r.virtual_y[-1] if r.virtual_y else r.y[-1]) for r in rays]
+        height = max(tips + [0.15 * max(p.semi_aperture for p in profiles)])
+        image = (z_last + sense_k * after, 1.15 * height)
+    stop = None
+    stop_z = _stop_z(system, vertices)
+    if stop_z is not None and not isinstance(results["stop diameter"], Unavailable):
+        radius = results["stop diameter"] / 2
+        if system.stop.after >= 0 and system.stop.offset == 0:  # at a boundary: at its rim
+            stop_z = profiles[system.stop.after].z_at(radius)
+        stop = (stop_z, radius)
+    return CrossSection(system.title, system.units, profiles, elements, rays, stop, image,
+                        object_plane, notes)
+
+
+def _flip(start):
+    return None if start is None else (-start[0], -start[1])
+
+
+def _heights_at(heights: dict, start, i: int) -> float:
+    return 0.0 if start is None else heights[id(start)][i]

@@ -1,0 +1,230 @@
+"""Draw a layout's cross-section with matplotlib, in layoutlang's own quiet style.
+
+Glass is a pale fill with a dark outline, mirrors a heavier line with short strokes on their
+back, the stop two dark bars, the image plane a thin upright line, the axis a dash-dot line.
+Marginal rays are solid, chief rays dashed. matplotlib is imported here only, so no other
+command pays for it; output is deterministic (fixed SVG id salt, no dates in the metadata).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+
+
+from ..system import IDEAL, MIRROR, System
+from .cross_section import CrossSection, cross_section
+
+__all__ = ["figure", "save_drawing", "drawing_bytes", "STYLE"]
+
+#: Our colours: ink for outlines and labels, a pale blue-grey family for materials, a deep
+#: teal for rays of a single wavelength.
+STYLE = {
+    "ink": "#2b3440",
+    "axis": "#8a94a3",
+    "glass": ["#dbe7ef", "#e6e0f0", "#dcefe3", "#f1e6d6"],
+    "mirror": "#4a5563",
+    "ray": "#0f6e73",
+    "chief_alpha": 0.9,
+    "font": 8,
+}
+
+_METADATA = {"svg": {"Date": None}, "pdf": {"CreationDate": None, "ModDate": None},
+             "png": {}}
+
+
+def _wavelength_colour(nm: float) -> str:
+    """A darkened colour near the hue of visible light of this wavelength (a piecewise
+    approximation of the spectrum, from memory), so blue light is drawn bluish, red reddish.
+    Outside 400-700 nm the nearest end is used."""
+    stops = [(400, (0.35, 0.1, 0.6)), (450, (0.15, 0.25, 0.8)), (490, (0.0, 0.5, 0.7)),
+             (530, (0.1, 0.55, 0.2)), (580, (0.65, 0.55, 0.0)), (620, (0.85, 0.35, 0.0)),
+             (700, (0.7, 0.05, 0.05))]
+    nm = min(max(nm, stops[0][0]), stops[-1][0])
+    for (w0, c0), (w1, c1) in zip(stops, stops[1:]):
+        if w0 <= nm <= w1:
+            t = (nm - w0) / (w1 - w0)
+            r, g, b = (a + (b_ - a) * t for a, b_ in zip(c0, c1))
+            return "#{:02x}{:02x}{:02x}".format(*(round(255 * v) for v in (r, g, b)))
+    return STYLE["ray"]
+
+
+def _ray_sets(system: System) -> list[tuple[str, str, CrossSection]]:
+    """(label, colour, cross-section) per wavelength where the layout's indices depend on the
+    wavelength; one set in our ray colour otherwise."""
+    section = cross_section(system)
+    waves = list(system.wavelengths)
+    at = getattr(system, "at_wavelength", None)
+    if at is None or len(waves) < 2:
+        label = ""
+        if len(waves) == 1:
+            label = f"{_nm(system, waves[0].value):g} nm"
+        return [(label, STYLE["ray"], section)]
+    sets = []
+    for wave in waves:
+        nm = _nm(system, wave.value)
+        sets.append((f"{nm:g} nm", _wavelength_colour(nm), cross_section(at(wave))))
+    return sets
+
+
+def _nm(system: System, value: Any) -> float:
+    from ..measure import LENGTH_UNITS
+
+    return round(float(value) * LENGTH_UNITS[system.units] * 1e6, 3)
+
+
+def figure(system: System) -> Any:
+    """A matplotlib Figure of the layout (not attached to any GUI backend)."""
+    from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
+
+    sets = _ray_sets(system)
+    section = sets[0][2]
+    z_min, z_max, y_max = section.extent()
+    for _, _, other in sets[1:]:
+        a, b, c = other.extent()
+        z_min, z_max, y_max = min(z_min, a), max(z_max, b), max(y_max, c)
+    width = max(z_max - z_min, 1e-9)
+    aspect = (3.1 * y_max) / (1.08 * width)
+    fig_w = 9.0
+    fig_h = min(max(fig_w * aspect + 1.2, 3.0), 8.0)
+    fig = Figure(figsize=(fig_w, fig_h), dpi=110)
+    ax = fig.add_subplot(1, 1, 1)
+    ink, font = STYLE["ink"], STYLE["font"]
+
+    ax.axhline(0, color=STYLE["axis"], lw=0.7, ls=(0, (8, 3, 1, 3)), zorder=1)
+    media = sorted({e.medium for e in section.elements})
+    for element in section.elements:
+        z, y = element.outline(section.profiles)
+        tint = STYLE["glass"][media.index(element.medium) % len(STYLE["glass"])]
+        ax.fill(z, y, facecolor=tint, edgecolor=ink, lw=0.9, zorder=2)
+    for profile in section.profiles:
+        _draw_profile(ax, profile, y_max)
+    bar = 0.0
+    if section.stop is not None:
+        bar = max(0.22 * section.stop[1], 0.04 * y_max)
+    top = max([p.semi_aperture for p in section.profiles]
+              + ([section.stop[1] + bar] if section.stop else []))
+    for profile, level in zip(section.profiles, _label_levels(section, width)):
+        ax.plot([profile.z, profile.z], [profile.semi_aperture, top], color=STYLE["axis"],
+                lw=0.5, zorder=1)
+        ax.annotate(profile.name, (profile.z, top), (0, 4 + 11 * level),
+                    textcoords="offset points", ha="center",
+                    va="bottom", fontsize=font, color=ink,
+                    arrowprops={"arrowstyle": "-", "color": STYLE["axis"], "lw": 0.5,
+                                "shrinkA": 1, "shrinkB": 0})
+    if section.stop is not None:
+        z, r = section.stop
+        for sign in (1, -1):
+            ax.plot([z, z], [sign * r, sign * (r + bar)], color=ink, lw=3.2,
+                    solid_capstyle="butt", zorder=4)
+        ax.text(z, -(r + bar) - 0.04 * y_max, "stop", ha="center", va="top", fontsize=font,
+                color=ink)
+    if section.image is not None:
+        z, h = section.image
+        virtual = any(ray.virtual_z for ray in section.rays)
+        ax.plot([z, z], [-h, h], color=ink, lw=1.1, zorder=4, ls=(0, (2, 2)) if virtual else "-")
+        ax.text(z, -h - 0.04 * y_max, "virtual image" if virtual else "image", ha="center",
+                va="top", fontsize=font, color=ink)
+    if section.object_plane is not None:
+        z, h = section.object_plane
+        if h:
+            ax.annotate("", (z, h), (z, 0), arrowprops={"arrowstyle": "-|>", "color": ink,
+                                                          "lw": 1.0})
+        ax.text(z, -0.06 * y_max, "object", ha="center", va="top", fontsize=font, color=ink)
+
+    handles = []
+    for label, colour, rays in sets:
+        for ray in rays.rays:
+            chief = ray.role == "chief"
+            ax.plot(ray.z, ray.y, color=colour, lw=0.9, ls=(0, (5, 3)) if chief else "-",
+                    alpha=STYLE["chief_alpha"] if chief else 1.0, zorder=3)
+            if ray.virtual_z:  # where the light seems to come from: faint and dotted
+                ax.plot(ray.virtual_z, ray.virtual_y, color=colour, lw=0.7, ls=(0, (1, 2)),
+                        alpha=0.6, zorder=3)
+        if label:
+            handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
+    handles.append(Line2D([], [], color=ink, lw=0.9, label="marginal ray"))
+    handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)), label="chief ray"))
+    ax.legend(handles=handles, loc="lower left", fontsize=font, frameon=False,
+              ncol=min(len(handles), 5), bbox_to_anchor=(0, 1.0))
+
+    ax.set_xlim(z_min - 0.04 * width, z_max + 0.04 * width)
+    ax.set_ylim(-1.35 * y_max, 1.75 * y_max)
+    ax.set_aspect("equal", adjustable="box")
+    for side in ("top", "right", "left"):
+        ax.spines[side].set_visible(False)
+    ax.spines["bottom"].set_color(STYLE["axis"])
+    ax.tick_params(colors=STYLE["axis"], labelsize=font, left=False, labelleft=False)
+    ax.set_xlabel(f"z along the axis ({section.units}); light starts toward +z", fontsize=font,
+                  color=ink)
+    title = section.title or "layout"
+    fig.suptitle(title, fontsize=font + 2, color=ink, x=0.02, ha="left")
+    if section.notes:
+        fig.text(0.02, 0.01, "\n".join(section.notes), fontsize=font - 1, color=STYLE["axis"],
+                 va="bottom")
+    fig.tight_layout(rect=(0, 0.03 * len(section.notes), 1, 1))
+    return fig
+
+
+def _label_levels(section: CrossSection, width: float) -> list[int]:
+    """A height level for each surface name so neighbouring names do not overlap: a name
+    moves up a level while it would sit within ~7% of the drawing's width of a name already
+    placed on that level."""
+    placed: list[tuple[float, int, int]] = []  # (z, level, characters)
+    levels = []
+    for profile in section.profiles:
+        level = 0
+        while any(lv == level and abs(z - profile.z) < 0.011 * width * (n + len(profile.name)) / 2
+                  for z, lv, n in placed) and level < 4:
+            level += 1
+        placed.append((profile.z, level, len(profile.name)))
+        levels.append(level)
+    return levels
+
+
+def _draw_profile(ax: Any, profile, y_max: float) -> None:
+    ink = STYLE["ink"]
+    if profile.kind == IDEAL:  # a thin ideal lens: a line with arrow tips, outward for power
+        r = profile.semi_aperture
+        style = "<|-|>" if profile.power >= 0 else "]-["
+        ax.annotate("", (profile.z, r), (profile.z, -r),
+                    arrowprops={"arrowstyle": style, "color": ink, "lw": 1.2,
+                                "shrinkA": 0, "shrinkB": 0})
+        return
+    z, y = profile.points()
+    if profile.kind == MIRROR:
+        ax.plot(z, y, color=STYLE["mirror"], lw=2.0, zorder=4, solid_capstyle="butt")
+        # short strokes on the back: behind the mirror is further along the arriving light
+        back = profile.sense_in
+        tick = 0.05 * max(profile.semi_aperture, 0.2 * y_max)
+        for zi, yi in zip(z[::3], y[::3]):
+            ax.plot([zi, zi + back * tick], [yi, yi + tick], color=STYLE["mirror"], lw=0.7,
+                    zorder=4)
+    else:
+        ax.plot(z, y, color=ink, lw=1.0, zorder=4)
+
+
+def save_drawing(system: System, path: str | Path, kind: str | None = None) -> None:
+    """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix)."""
+    kind = kind or Path(path).suffix.lower().lstrip(".")
+    Path(path).write_bytes(drawing_bytes(system, kind))
+
+
+def drawing_bytes(system: System, kind: str = "svg") -> bytes:
+    """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
+    import io
+
+    import matplotlib
+
+    with matplotlib.rc_context({"svg.hashsalt": "layoutlang", "svg.fonttype": "path",
+                                "pdf.compression": 6, "font.family": "DejaVu Sans"}):
+        fig = figure(system)
+        buffer = io.BytesIO()
+        fig.savefig(buffer, format=kind, metadata=_METADATA[kind])
+    return buffer.getvalue()
+
+
+
+

@@ -1,0 +1,188 @@
+"""Write a syntax tree back as script text, so an edited session can be saved as a script.
+
+The inverse of parsing: `parse(unparse(statements))` gives the same tree (positions aside).
+One function per node class, found by name (`_<Class>`), with a clear error for a class that
+has none; expressions get parentheses only where the grammar needs them.
+"""
+
+from __future__ import annotations
+
+from typing import Callable, Iterable
+
+from . import tree as t
+
+__all__ = ["unparse", "unparse_statement", "unparse_expr", "UnparseError"]
+
+
+class UnparseError(TypeError):
+    """A node class the unparser has no rule for (a programming error, not a user error)."""
+
+
+def unparse(statements: Iterable[t.Statement]) -> str:
+    """The canonical script text of these statements, one per line, ending in a newline."""
+    return "".join(unparse_statement(s) + "\n" for s in statements)
+
+
+def unparse_statement(node: t.Statement) -> str:
+    """One statement as one line of script text (no newline)."""
+    rule: Callable | None = _RULES.get(type(node).__name__)
+    if rule is None:
+        raise UnparseError(f"no way to write a {type(node).__name__} back as text")
+    return rule(node)
+
+
+# --- expressions -----------------------------------------------------------------------------
+
+# Binding strength of each operator; a child that binds more loosely than its place needs is
+# put in parentheses.
+_SUM, _PRODUCT, _SIGNED, _POWER, _ATOM = 1, 2, 3, 4, 5
+_LEVEL = {"+": _SUM, "-": _SUM, "*": _PRODUCT, "/": _PRODUCT, "^": _POWER}
+
+
+def _level(node: t.Expr) -> int:
+    if isinstance(node, t.Binary):
+        return _LEVEL[node.op]
+    if isinstance(node, t.Negate):
+        return _SIGNED
+    return _ATOM
+
+
+def _wrap(node: t.Expr, needed: int) -> str:
+    text = unparse_expr(node)
+    return f"({text})" if _level(node) < needed else text
+
+
+def unparse_expr(node: t.Expr) -> str:
+    """An expression as text; `a - (b - c)` keeps its parentheses, `a - b - c` has none."""
+    if isinstance(node, t.Number):
+        if node.unit is None:
+            return node.text
+        return f"{node.text}%" if node.unit == "%" else f"{node.text} {node.unit}"
+    if isinstance(node, t.Name):
+        return node.id
+    if isinstance(node, t.Call):
+        return f"{node.func}(" + ", ".join(unparse_expr(a) for a in node.args) + ")"
+    if isinstance(node, t.Negate):
+        return "-" + _wrap(node.operand, _SIGNED)
+    if isinstance(node, t.Binary):
+        level = _LEVEL[node.op]
+        if node.op == "^":
+            # grammar: atom ^ signed
+            return f"{_wrap(node.left, _ATOM)}^{_wrap(node.right, _SIGNED)}"
+        # left-associative: the left side may be at the same level, the right must bind tighter
+        right_needed = level + 1 if level == _SUM else _SIGNED
+        left_needed = level if level == _SUM else _PRODUCT
+        return f"{_wrap(node.left, left_needed)} {node.op} {_wrap(node.right, right_needed)}"
+    raise UnparseError(f"no way to write a {type(node).__name__} back as text")
+
+
+# --- statements (one rule per class) ---------------------------------------------------------
+
+
+def _shape(shape: t.Shape) -> str:
+    return "flat" if shape.kind == "flat" else f"{shape.kind} {unparse_expr(shape.value)}"
+
+
+def _BoundaryStatement(node: t.BoundaryStatement) -> str:
+    parts = [node.kind]
+    if node.name is not None:
+        parts.append(node.name.text)
+    if node.kind == "lens":
+        parts.append(f"{node.strength_kind} {unparse_expr(node.strength)}")
+    else:
+        parts.append(_shape(node.shape))
+    if node.into is not None:
+        parts.append(f"into {node.into.text}")
+    text = " ".join(parts)
+    if node.clear_diameter is not None:
+        text += f", clear diameter {unparse_expr(node.clear_diameter)}"
+    return text
+
+
+def _Stop(node: t.Stop) -> str:
+    if node.relation == "at":
+        place = f"stop at {node.anchor.text}"
+    else:
+        place = f"stop {unparse_expr(node.offset)} {node.relation} {node.anchor.text}"
+    return f"{place}, {node.size_kind} {unparse_expr(node.size)}"
+
+
+def _ObjectBefore(node: t.ObjectBefore) -> str:
+    text = f"object {unparse_expr(node.distance)} before"
+    return text if node.height is None else text + f", height {unparse_expr(node.height)}"
+
+
+def _ObjectAtInfinity(node: t.ObjectAtInfinity) -> str:
+    text = "object at infinity"
+    if node.field_angle is not None:
+        text += f", field angle {unparse_expr(node.field_angle)}"
+    return text
+
+
+def _Wavelengths(node: t.Wavelengths) -> str:
+    items = (unparse_expr(w.value) + (" primary" if w.primary else "") for w in node.items)
+    return "wavelengths " + ", ".join(items)
+
+
+def _Expect(node: t.Expect) -> str:
+    text = f"expect {node.quantity.text} {node.op} {unparse_expr(node.value)}"
+    if node.tolerance is not None:
+        word = "±" if node.tolerance.kind == "±" else "within"
+        text += f" {word} {unparse_expr(node.tolerance.value)}"
+    return text
+
+
+def _Report(node: t.Report) -> str:
+    return " ".join(["report", ", ".join(q.text for q in node.quantities)]).rstrip()
+
+
+def _Change(node: t.Change) -> str:
+    value = "" if node.value is None else unparse_expr(node.value)
+    if node.target == "gap":
+        return f"change gap {node.prop} {node.name.text} to {value}"
+    if node.target in ("object", "stop"):
+        return f"change {node.target} {node.prop} to {value}"
+    if node.target == "medium":
+        return f"change medium {node.name.text} index to {value}"
+    if node.prop == "flat":
+        return f"change {node.name.text} to flat"
+    if node.prop == "value":
+        return f"change {node.name.text} to {value}"
+    return f"change {node.name.text} {node.prop} to {value}"
+
+
+def _Remove(node: t.Remove) -> str:
+    if node.gap is None:
+        return f"remove {node.anchor.text}"
+    return f"remove gap {node.gap} {node.anchor.text}"
+
+
+_RULES: dict[str, Callable] = {
+    "Title": lambda n: f'layout "{n.text}"',
+    "Units": lambda n: f"units {n.unit.text}",
+    "Let": lambda n: f"let {n.name.text} = {unparse_expr(n.value)}",
+    "MediumIndex": lambda n: f"medium {n.name.text} index {unparse_expr(n.index)}",
+    "StartMedium": lambda n: f"start in {n.medium.text}",
+    "ObjectAtInfinity": _ObjectAtInfinity,
+    "ObjectBefore": _ObjectBefore,
+    "BoundaryStatement": _BoundaryStatement,
+    "Gap": lambda n: f"gap {unparse_expr(n.length)}",
+    "Stop": _Stop,
+    "Image": lambda n: "image at focus" if n.distance is None
+    else f"image {unparse_expr(n.distance)} after",
+    "Wavelengths": _Wavelengths,
+    "Expect": _Expect,
+    "Report": _Report,
+    "Use": lambda n: f'use "{n.target}"' if n.is_file else f"use {n.target}",
+    # commands of the interactive session
+    "Change": _Change,
+    "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",
+    "Remove": _Remove,
+    "Rename": lambda n: f"rename {n.old.text} to {n.new.text}",
+    "Undo": lambda n: "undo",
+    "Redo": lambda n: "redo",
+    "Show": lambda n: f"show {n.what}",
+    "Save": lambda n: "save" if n.path is None else f'save "{n.path}"',
+    "Help": lambda n: "help",
+    "Leave": lambda n: "leave",
+}

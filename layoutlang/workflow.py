@@ -1,0 +1,131 @@
+"""The team-workflow commands: `format`, `draw` and `report`, plus `check --junit`.
+
+Kept out of `cli.py` so the shared command line only gains two small hooks; each command imports
+its machinery (matplotlib for drawings) only when it runs.
+"""
+
+from __future__ import annotations
+
+import argparse
+import difflib
+import sys
+from pathlib import Path
+
+from .errors import LayoutError
+
+__all__ = ["add_commands", "run_command", "write_junit", "DRAWING_FORMATS", "REPORT_FORMATS"]
+
+EXIT_OK, EXIT_FAILED, EXIT_ERROR = 0, 1, 2
+DRAWING_FORMATS = ("svg", "png", "pdf")
+REPORT_FORMATS = ("md", "html", "latex")
+
+
+def add_commands(commands) -> None:
+    """Add `format`, `draw` and `report` to the command line's subparsers."""
+    fmt = commands.add_parser("format", help="rewrite scripts in the canonical layout")
+    fmt.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
+    fmt.add_argument("--check", action="store_true",
+                     help="change nothing; exit 1 if a file would change")
+    fmt.add_argument("--diff", action="store_true", help="print what would change, write nothing")
+    draw = commands.add_parser("draw", help="draw the layout's cross-section with its rays")
+    draw.add_argument("file", help="a layout script (.lay)")
+    draw.add_argument("-o", "--output", required=True, metavar="OUT",
+                      help="the picture to write: OUT.svg, OUT.png or OUT.pdf")
+    report = commands.add_parser("report", help="one document: tables, checks and the drawing")
+    report.add_argument("file", help="a layout script (.lay)")
+    report.add_argument("--format", choices=REPORT_FORMATS, default="md", dest="doc_format",
+                        help="document format (default md)")
+    report.add_argument("-o", "--output", metavar="OUT",
+                        help="write the document here (the drawing goes beside it); default: "
+                             "standard output")
+
+
+def run_command(args: argparse.Namespace) -> int:
+    """Run one of the workflow commands; LayoutErrors become messages and exit status 2."""
+    try:
+        if args.command == "format":
+            return _format(args.files, args.check, args.diff)
+        if args.command == "draw":
+            return _draw(args.file, args.output)
+        return _report(args.file, args.doc_format, args.output)
+    except LayoutError as error:
+        print(error, file=sys.stderr)
+        return EXIT_ERROR
+
+
+def _format(paths: list[str], check: bool, show_diff: bool) -> int:
+    from .formatter import format_file
+
+    status = EXIT_OK
+    for path in paths:
+        try:
+            result = format_file(path)
+        except LayoutError as error:
+            print(error, file=sys.stderr)
+            status = EXIT_ERROR
+            continue
+        if not result.changed:
+            continue
+        if show_diff:
+            sys.stdout.writelines(difflib.unified_diff(
+                result.original.splitlines(keepends=True),
+                result.formatted.splitlines(keepends=True), f"{path} (as written)",
+                f"{path} (formatted)"))
+        if check or show_diff:
+            print(f"{path}: would be reformatted", file=sys.stderr)
+            if status == EXIT_OK:
+                status = EXIT_FAILED
+            continue
+        Path(path).write_text(result.formatted, encoding="utf-8")
+        print(f"{path}: reformatted")
+    return status
+
+
+def _output_format(output: str, allowed: tuple[str, ...]) -> str:
+    suffix = Path(output).suffix.lower().lstrip(".")
+    if suffix not in allowed:
+        raise LayoutError(f"cannot tell the picture format of {output!r}",
+                          expected="a file name ending in " + ", ".join("." + a for a in allowed))
+    return suffix
+
+
+def _draw(path: str, output: str) -> int:
+    from .interpret.interpreter import load_file
+    from .reports.drawing import save_drawing
+
+    kind = _output_format(output, DRAWING_FORMATS)
+    program = load_file(path)
+    try:
+        save_drawing(program.system, output, kind)
+    except OSError as error:
+        raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
+    print(f"{output}: written")
+    return EXIT_OK
+
+
+def _report(path: str, doc_format: str, output: str | None) -> int:
+    from .reports.document import render_document
+
+    document = render_document(path, doc_format, output)
+    if output is None:
+        sys.stdout.write(document.text)
+    else:
+        try:
+            Path(output).write_text(document.text, encoding="utf-8")
+        except OSError as error:
+            raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
+        print(f"{output}: written", file=sys.stderr)
+    return EXIT_OK if document.all_hold else EXIT_FAILED
+
+
+def write_junit(path: str, outcomes: list[tuple[str, list, str | None]]) -> bool:
+    """Write `check` results as JUnit XML; False (after saying why) if the file can't be written."""
+    from .reports.junit import ScriptOutcome, junit_xml
+
+    text = junit_xml([ScriptOutcome(file, results, error) for file, results, error in outcomes])
+    try:
+        Path(path).write_text(text, encoding="utf-8")
+    except OSError as error:
+        print(f"error: cannot write {path}: {error.strerror or error}", file=sys.stderr)
+        return False
+    return True
