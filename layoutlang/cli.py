@@ -36,6 +36,11 @@ def _parser() -> argparse.ArgumentParser:
     from .workflow import add_commands  # format, draw, report
 
     add_commands(commands)
+    repl = commands.add_parser("repl", help="edit a layout interactively, seeing what changes")
+    repl.add_argument("file", nargs="?", help="a layout script to open (and save to)")
+    kept = repl.add_mutually_exclusive_group()
+    kept.add_argument("--history", metavar="PATH", help="where typed lines are kept")
+    kept.add_argument("--no-history", action="store_true", help="keep typed lines in memory only")
     return parser
 
 
@@ -44,6 +49,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command == "run":
             return _run(args.file, args.json)
+        if args.command == "repl":
+            return _repl(args)
         if args.command != "check":
             from .workflow import run_command
 
@@ -53,6 +60,16 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+
+
+def _repl(args: argparse.Namespace) -> int:
+    from pathlib import Path
+
+    from .repl.history import default_history_path
+    from .repl.session import main_repl
+
+    history = None if args.no_history else Path(args.history or default_history_path())
+    return main_repl(args.file, history)
 
 
 def _evaluate(path: str):

@@ -183,6 +183,9 @@ class _Interpreter:
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)
+        if handler is None and isinstance(statement, t.SessionCommand):
+            raise LayoutValueError("this command works only in the interactive session "
+                                   "(layoutlang repl)", self.span(statement))
         if handler is None:
             raise LayoutValueError(f"statement {type(statement).__name__} is not supported here",
                                    self.span(statement))

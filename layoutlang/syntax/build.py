@@ -206,6 +206,65 @@ class _Builder(Transformer):
     def use_file(self, meta, items):
         return t.Use(str(items[0])[1:-1], True, pos=_pos(meta))
 
+    # --- commands of the interactive session (grammar/session.lark) -----------------------
+    def _words(self, meta, items):
+        return " ".join(str(token) for token in items)
+
+    boundary_property = object_property = stop_property = place = show_what = _words
+
+    def change_property(self, meta, items):
+        name, prop, value = items
+        return t.Change("named", _ident(name), prop, value, pos=_pos(meta))
+
+    def change_to_flat(self, meta, items):
+        return t.Change("named", _ident(items[0]), "flat", None, pos=_pos(meta))
+
+    def change_constant(self, meta, items):
+        return t.Change("named", _ident(items[0]), "value", items[1], pos=_pos(meta))
+
+    def change_medium_index(self, meta, items):
+        return t.Change("medium", _ident(items[0]), "index", items[1], pos=_pos(meta))
+
+    def change_gap(self, meta, items):
+        place, name, value = items
+        return t.Change("gap", _ident(name), place, value, pos=_pos(meta))
+
+    def change_object(self, meta, items):
+        return t.Change("object", None, items[0], items[1], pos=_pos(meta))
+
+    def change_stop(self, meta, items):
+        return t.Change("stop", None, items[0], items[1], pos=_pos(meta))
+
+    def insert(self, meta, items):
+        item, place, anchor = items
+        return t.Insert(item, place, _ident(anchor), pos=_pos(meta))
+
+    def remove_boundary(self, meta, items):
+        return t.Remove(_ident(items[0]), None, pos=_pos(meta))
+
+    def remove_gap(self, meta, items):
+        return t.Remove(_ident(items[1]), items[0], pos=_pos(meta))
+
+    def rename(self, meta, items):
+        return t.Rename(_ident(items[0]), _ident(items[1]), pos=_pos(meta))
+
+    def undo(self, meta, items):
+        return t.Undo(pos=_pos(meta))
+
+    def redo(self, meta, items):
+        return t.Redo(pos=_pos(meta))
+
+    def show(self, meta, items):
+        return t.Show(items[0], pos=_pos(meta))
+
+    def save(self, meta, items):
+        return t.Save(None if items[0] is None else str(items[0])[1:-1], pos=_pos(meta))
+
+    def help(self, meta, items):
+        return t.Help(pos=_pos(meta))
+
+    def leave(self, meta, items):
+        return t.Leave(pos=_pos(meta))
 
 _BUILDER = _Builder()
 

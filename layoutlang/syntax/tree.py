@@ -16,6 +16,8 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
+    "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
+    "Help", "Leave",
 ]
 
 
@@ -232,3 +234,76 @@ class Script(Node):
     file: str
     statements: tuple[Statement, ...]
     text: str = field(default="", compare=False, repr=False)
+
+
+# --- commands of the interactive session (grammar/session.lark) -------------------------------
+
+
+@dataclass(frozen=True)
+class SessionCommand(Statement):
+    """A command of `layoutlang repl`; a script file cannot use one."""
+
+
+@dataclass(frozen=True)
+class Change(SessionCommand):
+    """`change ...`: target is 'named' (a boundary, medium or constant by its name), 'medium',
+    'gap', 'object' or 'stop'; prop the property in words ('radius', 'clear diameter', 'flat',
+    'value' for a constant, 'before'/'after' for a gap); value None only for 'flat'."""
+
+    target: str
+    name: Ident | None
+    prop: str
+    value: Expr | None = None
+
+
+@dataclass(frozen=True)
+class Insert(SessionCommand):
+    """`insert <surface|mirror|lens|gap statement> before|after NAME`."""
+
+    item: Statement
+    place: str
+    anchor: Ident
+
+
+@dataclass(frozen=True)
+class Remove(SessionCommand):
+    """`remove NAME` (gap None) or `remove gap before|after NAME` (gap = 'before'/'after')."""
+
+    anchor: Ident
+    gap: str | None = None
+
+
+@dataclass(frozen=True)
+class Rename(SessionCommand):
+    old: Ident
+    new: Ident
+
+
+@dataclass(frozen=True)
+class Undo(SessionCommand):
+    pass
+
+
+@dataclass(frozen=True)
+class Redo(SessionCommand):
+    pass
+
+
+@dataclass(frozen=True)
+class Show(SessionCommand):
+    what: str  # 'table' | 'script' | 'results' | 'expectations'
+
+
+@dataclass(frozen=True)
+class Save(SessionCommand):
+    path: str | None = None
+
+
+@dataclass(frozen=True)
+class Help(SessionCommand):
+    pass
+
+
+@dataclass(frozen=True)
+class Leave(SessionCommand):
+    pass
