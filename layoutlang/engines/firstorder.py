@@ -252,7 +252,9 @@ class _Evaluation:
             else:  # f-number: the entrance pupil that gives it
                 if self.afocal:
                     return Unavailable("none: an afocal layout has no f-number to size the stop")
-                entrance = abs(self.values["focal length"]) / stop.size
+                # the working f-number 1/(2 n' u') of a collimated beam of diameter D is
+                # 1/(power D) = EFL/D; the image-side focal length n'/power would be off by n'
+                entrance = abs(self.values["effective focal length"]) / stop.size
             y_stop = a1 * entrance / 2
             return entrance / 2, 0.0, 2 * abs(y_stop)
         # finite object: a ray from the axial object point

@@ -42,11 +42,14 @@ def signed_indices(system: System) -> list[Number]:
 def surface_powers(system: System) -> list[Number]:
     """The reduced power phi of each boundary."""
     indices = signed_indices(system)
+    senses = system.directions()
     powers = []
     for i, boundary in enumerate(system.boundaries):
         before, after = indices[i], indices[i + 1]
         if boundary.kind == IDEAL:
-            powers.append(before * boundary.power)
+            # a thin lens converges whichever way the light crosses it: its reduced power uses
+            # the physical index (|N|), not the signed one
+            powers.append(before * boundary.power if senses[i] > 0 else -before * boundary.power)
         elif boundary.kind == MIRROR:
             powers.append(boundary.curvature * (-before - before))
         else:
