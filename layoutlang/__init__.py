@@ -6,13 +6,19 @@ The public API is a handful of thin functions over the same core the command lin
     load(path) / loads(text) -> Program (the System plus the script's expectations)
     evaluate(system)       -> FirstOrder (every first-order property)
     check(program)         -> list of CheckResult (one per expectation)
+    format_script(text)    -> the canonical layout of a script
+    draw(system, path)     -> writes an svg/png/pdf cross-section (matplotlib)
+    report(path, fmt)      -> a md/html/latex design report as text
+
+In a notebook a Program shows its report and `evaluate(...)` a table with units.
 """
 
 from __future__ import annotations
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "parse", "load", "loads", "evaluate", "check"]
+__all__ = ["__version__", "parse", "load", "loads", "evaluate", "check", "format_script",
+           "draw", "report"]
 
 
 def parse(text: str, file: str = "<script>"):
@@ -37,10 +43,13 @@ def loads(text: str, file: str = "<script>", base=None):
 
 
 def evaluate(system):
-    """All first-order properties of a numeric System."""
+    """All first-order properties of a numeric System (or of a Program's System); the result
+    indexes by quantity name and displays itself with units in a notebook."""
     from .engines.firstorder import first_order
+    from .notebook import with_units
 
-    return first_order(system)
+    system = getattr(system, "system", system)
+    return with_units(first_order(system), system.units)
 
 
 def check(program):
@@ -48,3 +57,26 @@ def check(program):
     from .checks import check_program
 
     return check_program(program)
+
+
+def format_script(text: str, file: str = "<script>") -> str:
+    """The canonical layout of script text (what `layoutlang format` writes)."""
+    from .formatter import format_text
+
+    return format_text(text, file)
+
+
+def draw(system, path, kind: str | None = None) -> None:
+    """Draw the cross-section of a System (or a Program's) to an svg, png or pdf file."""
+    from .reports.drawing import save_drawing
+
+    hazards = tuple(getattr(system, "hazards", ()) or ())
+    save_drawing(getattr(system, "system", system), path, kind, hazards)
+
+
+def report(path, fmt: str = "md", output=None) -> str:
+    """The design report of a script file as Markdown, HTML or LaTeX text (`output`: where the
+    document will go, so the drawing can be written beside it)."""
+    from .reports.document import render_document
+
+    return render_document(str(path), fmt, None if output is None else str(output)).text

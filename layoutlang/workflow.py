@@ -96,7 +96,7 @@ def _draw(path: str, output: str) -> int:
     kind = _output_format(output, DRAWING_FORMATS)
     program = load_file(path)
     try:
-        save_drawing(program.system, output, kind)
+        save_drawing(program.system, output, kind, tuple(getattr(program, "hazards", ())))
     except OSError as error:
         raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
     print(f"{output}: written")

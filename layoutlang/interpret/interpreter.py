@@ -54,6 +54,11 @@ class Program:
     hazards: tuple[str, ...] = ()  # declared with `hazard`, in script order
     names: dict[str, Measure] = field(default_factory=dict, compare=False)
 
+    def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
+        from ..notebook import program_html
+
+        return program_html(self)
+
 
 def load_file(path: str | Path) -> Program:
     """Read, parse and interpret a script file."""

@@ -74,8 +74,14 @@ def _nm(system: System, value: Any) -> float:
     return round(float(value) * LENGTH_UNITS[system.units] * 1e6, 3)
 
 
-def figure(system: System) -> Any:
-    """A matplotlib Figure of the layout (not attached to any GUI backend)."""
+def figure(system: System, hazards: tuple[str, ...] = ()) -> Any:
+    """A matplotlib Figure of the layout (not attached to any GUI backend).
+
+    Args:
+        system: the layout.
+        hazards: the script's declared hazards (laser, eye, sunlight): the drawing then carries
+            a short caution, since a picture often travels without its report.
+    """
     from matplotlib.figure import Figure
     from matplotlib.lines import Line2D
 
@@ -161,10 +167,14 @@ def figure(system: System) -> Any:
                   color=ink)
     title = section.title or "layout"
     fig.suptitle(title, fontsize=font + 2, color=ink, x=0.02, ha="left")
-    if section.notes:
-        fig.text(0.02, 0.01, "\n".join(section.notes), fontsize=font - 1, color=STYLE["axis"],
+    notes = list(section.notes)
+    if hazards:
+        notes.insert(0, "CAUTION (" + ", ".join(hazards) + "): see the report's caution; follow "
+                     "local codes and licensed practice")
+    if notes:
+        fig.text(0.02, 0.01, "\n".join(notes), fontsize=font - 1, color=STYLE["axis"],
                  va="bottom")
-    fig.tight_layout(rect=(0, 0.03 * len(section.notes), 1, 1))
+    fig.tight_layout(rect=(0, 0.03 * len(notes), 1, 1))
     return fig
 
 
@@ -206,13 +216,14 @@ def _draw_profile(ax: Any, profile, y_max: float) -> None:
         ax.plot(z, y, color=ink, lw=1.0, zorder=4)
 
 
-def save_drawing(system: System, path: str | Path, kind: str | None = None) -> None:
+def save_drawing(system: System, path: str | Path, kind: str | None = None,
+                 hazards: tuple[str, ...] = ()) -> None:
     """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix)."""
     kind = kind or Path(path).suffix.lower().lstrip(".")
-    Path(path).write_bytes(drawing_bytes(system, kind))
+    Path(path).write_bytes(drawing_bytes(system, kind, hazards))
 
 
-def drawing_bytes(system: System, kind: str = "svg") -> bytes:
+def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = ()) -> bytes:
     """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
     import io
 
@@ -220,7 +231,7 @@ def drawing_bytes(system: System, kind: str = "svg") -> bytes:
 
     with matplotlib.rc_context({"svg.hashsalt": "layoutlang", "svg.fonttype": "path",
                                 "pdf.compression": 6, "font.family": "DejaVu Sans"}):
-        fig = figure(system)
+        fig = figure(system, hazards)
         buffer = io.BytesIO()
         fig.savefig(buffer, format=kind, metadata=_METADATA[kind])
     return buffer.getvalue()

@@ -1,0 +1,80 @@
+"""Rich display in notebooks: a Program shows its report, first-order results a table.
+
+Jupyter calls `_repr_html_` / `_repr_latex_` on the last value of a cell. The Program's method
+(in interpreter.py) delegates here; `evaluate()` returns a `FirstOrderResults`, a FirstOrder that
+also knows the layout's units so it can show every value with its unit.
+"""
+
+from __future__ import annotations
+
+import html
+from dataclasses import dataclass
+
+from .engines.firstorder import FirstOrder, Unavailable
+from .quantities import QUANTITIES, REPORT_ORDER
+
+__all__ = ["FirstOrderResults", "program_html", "with_units"]
+
+
+def program_html(program) -> str:
+    """The program's report (drawing, layout, first-order, expectations) as an HTML fragment."""
+    from .checks import check_program
+    from .engines.firstorder import first_order
+    from .errors import LayoutError
+    from .reports.document import gather, html_fragment
+
+    results = first_order(program.system)
+    sections = gather(program, results, check_program(program, results))
+    svg = None
+    try:
+        from .reports.drawing import drawing_bytes
+
+        text = drawing_bytes(program.system, "svg").decode("utf-8")
+        svg = text[text.index("<svg"):]
+    except (ImportError, LayoutError):  # no matplotlib here, or nothing drawable: tables only
+        svg = None
+    return html_fragment(sections, svg)
+
+
+@dataclass(frozen=True)
+class FirstOrderResults(FirstOrder):
+    """First-order results that know their units, for display."""
+
+    units: str = "mm"
+
+    def rows(self) -> list[tuple[str, str]]:
+        """(quantity, value with unit or the reason there is none), in report order."""
+        from .reports.text import describe_value
+
+        return [(name, describe_value(name, self.values[name], self.units))
+                for name in REPORT_ORDER if name in self.values
+                and not (name == "afocal angular magnification" and not self.afocal)]
+
+    def _repr_html_(self) -> str:
+        body = "".join(f"<tr><td>{html.escape(n)}</td><td>{html.escape(v)}</td></tr>"
+                       for n, v in self.rows())
+        return f"<table><tr><th>quantity</th><th>value</th></tr>{body}</table>"
+
+    def _repr_latex_(self) -> str:
+        from .checks import display_unit, to_display
+        from .testing import format_number
+
+        lines = []
+        for name in REPORT_ORDER:
+            value = self.values.get(name)
+            if value is None or isinstance(value, Unavailable):
+                continue
+            kind = QUANTITIES[name].kind
+            unit = display_unit(kind, self.units)
+            shown = format_number(to_display(value, kind, self.units))
+            unit_tex = rf"\ \mathrm{{{unit}}}" if unit else ""
+            lines.append(rf"\text{{{name}}} &= {shown}{unit_tex}")
+        return r"$\begin{aligned}" + r"\\ ".join(lines) + r"\end{aligned}$"
+
+
+def with_units(results: FirstOrder, units: str) -> FirstOrderResults:
+    """The same results, able to show themselves with units."""
+    from dataclasses import fields
+
+    return FirstOrderResults(**{f.name: getattr(results, f.name) for f in fields(results)
+                                if f.init and f.name != "units"}, units=units)

@@ -1,0 +1,340 @@
+"""Design-report documents (Markdown, HTML, LaTeX): the layout table, first-order report,
+expectations with their status, derived equations where the script has them, and the drawing.
+
+The content is gathered once into plain rows (`Sections`) and written by one small writer per
+format, so the three documents always say the same thing. Same script, same bytes.
+"""
+
+from __future__ import annotations
+
+import base64
+import html
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from ..checks import CheckResult
+from ..engines.firstorder import FirstOrder
+from ..interpret.interpreter import Program
+from ..quantities import REPORT_ORDER
+from ..system import IDEAL, MIRROR, System
+from ..testing import format_number
+from .text import SIGN_CONVENTION, describe_value
+
+__all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
+           "latex_document"]
+
+LAYOUT_HEADINGS = ["#", "boundary", "shape", "light then in", "index", "then gap",
+                   "clear diameter"]
+
+
+@dataclass
+class Sections:
+    """Everything a report says, as plain text rows."""
+
+    title: str
+    file: str
+    units: str
+    layout: list[list[str]]
+    setting: list[str]
+    first_order: list[list[str]]
+    notes: list[str]
+    expectations: list[list[str]]  # status, line, statement, message
+    equations: list[tuple[str, str, str]] = field(default_factory=list)  # name, text, latex
+    cautions: list[str] = field(default_factory=list)
+
+    @property
+    def all_hold(self) -> bool:
+        return all(row[0] == "holds" for row in self.expectations)
+
+
+@dataclass(frozen=True)
+class Document:
+    text: str
+    all_hold: bool
+
+
+def _length(value: Any, units: str) -> str:
+    return f"{format_number(value)} {units}"
+
+
+def layout_rows(system: System) -> list[list[str]]:
+    """One row per boundary, in the order the light meets them."""
+    units = system.units
+    indices = system.indices()
+    rows = []
+    for i, boundary in enumerate(system.boundaries):
+        if boundary.kind == IDEAL:
+            shape = (f"thin lens, focal length {_length(1 / boundary.power, units)}"
+                     if boundary.power else "thin lens, no power")
+        else:
+            shape = "flat" if boundary.curvature == 0 else \
+                f"radius {_length(1 / boundary.curvature, units)}"
+            if boundary.kind == MIRROR:
+                shape = "mirror, " + shape
+        gap = _length(system.gaps[i], units) if i < len(system.gaps) else "-"
+        clear = "-" if boundary.clear_diameter is None else _length(boundary.clear_diameter, units)
+        rows.append([str(i + 1), boundary.name, shape, boundary.medium_after,
+                     format_number(indices[i + 1]), gap, clear])
+    return rows
+
+
+def setting_lines(system: System) -> list[str]:
+    """The object, stop, image plane and wavelengths in words."""
+    units = system.units
+    obj = system.object
+    if obj.at_infinity:
+        lines = [f"object at infinity, field angle "
+                 f"{format_number(math.degrees(obj.field_angle))} deg"]
+    else:
+        side = "before" if obj.distance >= 0 else "after (a virtual object)"
+        lines = [f"object {_length(abs(obj.distance), units)} {side} the first boundary, "
+                 f"height {_length(obj.height, units)}"]
+    stop = system.stop
+    if stop is None:
+        lines.append("no stop given (pupils and f-number are not computed)")
+    else:
+        where = ("before the first boundary" if stop.after < 0 else
+                 f"at {system.boundaries[stop.after].name}" if stop.offset == 0 else
+                 f"{_length(stop.offset, units)} after {system.boundaries[stop.after].name}")
+        size = (f"diameter {_length(stop.size, units)}" if stop.size_kind == "diameter" else
+                f"sized by {stop.size_kind} {format_number(stop.size)}")
+        lines.append(f"stop {where}, {size}")
+    lines.append("image plane at the paraxial focus" if system.image.distance is None else
+                 f"image plane {_length(system.image.distance, units)} after the last boundary")
+    if system.wavelengths:
+        from ..measure import LENGTH_UNITS
+
+        nm = LENGTH_UNITS[units] * 1e6
+        lines.append("wavelengths " + ", ".join(
+            f"{format_number(w.value * nm)} nm" + (" (primary)" if w.primary else "")
+            for w in system.wavelengths))
+    return lines
+
+
+def _equations(program: Program) -> list[tuple[str, str, str]]:
+    """(quantity, plain text, LaTeX) of each derived equation, when the script derives any
+    (the symbolic engine is imported only then)."""
+    derived = getattr(program, "derivations", None) or ()
+    found = []
+    for item in derived:
+        name = str(getattr(item, "name", getattr(item, "quantity", "")))
+        expression = getattr(item, "expression", getattr(item, "expr", None))
+        if expression is None:
+            continue
+        try:
+            import sympy
+
+            found.append((name, str(expression), sympy.latex(expression)))
+        except Exception:  # a derivation the printer cannot render: show its text only
+            found.append((name, str(expression), ""))
+    return found
+
+
+def gather(program: Program, results: FirstOrder, checked: list[CheckResult]) -> Sections:
+    """Collect a report's content from an evaluated program."""
+    from ..hazards import CAUTIONS, GENERAL
+
+    system = program.system
+    units = system.units
+    first = []
+    for name in REPORT_ORDER:
+        if name == "afocal angular magnification" and not results.afocal:
+            continue
+        first.append([name, describe_value(name, results[name], units)])
+    expectations = [["holds" if r.passed else "FAILS", str(r.expectation.span.line),
+                     r.expectation.text, r.outcome.message] for r in checked]
+    hazards = tuple(getattr(program, "hazards", ()) or ())
+    cautions = [CAUTIONS[h] for h in hazards if h in CAUTIONS]
+    return Sections(system.title or Path(program.file).name, program.file, units,
+                    layout_rows(system), setting_lines(system), first, list(results.notes),
+                    expectations, _equations(program), cautions + ([GENERAL] if cautions else []))
+
+
+# --- Markdown --------------------------------------------------------------------------------
+
+def _md_cell(text: str) -> str:
+    return text.replace("|", "\\|")
+
+
+def _md_table(head: list[str], rows: list[list[str]]) -> list[str]:
+    lines = ["| " + " | ".join(head) + " |", "|" + "|".join(" --- " for _ in head) + "|"]
+    lines += ["| " + " | ".join(_md_cell(c) for c in row) + " |" for row in rows]
+    return lines
+
+
+def markdown(s: Sections, drawing_link: str | None) -> str:
+    """The report as Markdown; `drawing_link` is an image path or data URI (None: omitted)."""
+    out = [f"# {s.title}", "", f"File `{s.file}`, lengths in {s.units}. {SIGN_CONVENTION}.", ""]
+    for caution in s.cautions:
+        out += [f"> **{caution}**", ""]
+    if drawing_link:
+        out += ["## Drawing", "", f"![cross-section of {s.title}]({drawing_link})", ""]
+    out += ["## Layout", ""] + _md_table(LAYOUT_HEADINGS, s.layout) + [""]
+    out += ["## Setting", ""] + [f"- {line}" for line in s.setting] + [""]
+    out += ["## First-order properties", ""] + _md_table(["quantity", "value"], s.first_order)
+    out += [""] + [f"Note: {note}" for note in s.notes] + ([""] if s.notes else [])
+    out += ["## Expectations", ""]
+    if s.expectations:
+        out += _md_table(["status", "line", "statement", "result"], s.expectations)
+    else:
+        out += ["The script states no expectations."]
+    if s.equations:
+        out += ["", "## Derived equations", ""]
+        for name, _, tex in s.equations:
+            out += [f"{name}:", "", f"$$ {tex} $$", ""]
+    return "\n".join(out).rstrip() + "\n"
+
+
+# --- HTML ------------------------------------------------------------------------------------
+
+_CSS = ("body{font-family:system-ui,sans-serif;max-width:60em;margin:2em auto;color:#2b3440}"
+        "table{border-collapse:collapse;margin:.5em 0}"
+        "td,th{border-bottom:1px solid #d5dbe3;padding:.2em .8em;text-align:left}"
+        ".holds{color:#1d6b3a}.FAILS{color:#a31f1f;font-weight:bold}"
+        ".caution{border-left:4px solid #a31f1f;padding:.3em .8em}")
+
+
+def _html_table(head: list[str], rows: list[list[str]], status_column: int | None = None) -> str:
+    esc = html.escape
+    parts = ["<table>", "<tr>" + "".join(f"<th>{esc(h)}</th>" for h in head) + "</tr>"]
+    for row in rows:
+        cells = []
+        for i, cell in enumerate(row):
+            css = f' class="{cell}"' if i == status_column else ""
+            cells.append(f"<td{css}>{esc(cell)}</td>")
+        parts.append("<tr>" + "".join(cells) + "</tr>")
+    parts.append("</table>")
+    return "\n".join(parts)
+
+
+def html_fragment(s: Sections, svg: str | None) -> str:
+    """The report's body as HTML (also used for notebook display)."""
+    esc = html.escape
+    out = [f"<h1>{esc(s.title)}</h1>",
+           f"<p>File <code>{esc(s.file)}</code>, lengths in {esc(s.units)}. "
+           f"{esc(SIGN_CONVENTION)}.</p>"]
+    out += [f'<p class="caution">{esc(c)}</p>' for c in s.cautions]
+    if svg:
+        out += ["<h2>Drawing</h2>", svg]
+    out += ["<h2>Layout</h2>", _html_table(LAYOUT_HEADINGS, s.layout)]
+    out += ["<h2>Setting</h2>", "<ul>" + "".join(f"<li>{esc(x)}</li>" for x in s.setting)
+            + "</ul>"]
+    out += ["<h2>First-order properties</h2>", _html_table(["quantity", "value"], s.first_order)]
+    out += [f"<p>Note: {esc(n)}</p>" for n in s.notes]
+    out += ["<h2>Expectations</h2>", _html_table(["status", "line", "statement", "result"],
+                                                  s.expectations, 0) if s.expectations
+            else "<p>The script states no expectations.</p>"]
+    if s.equations:
+        out += ["<h2>Derived equations</h2>"]
+        out += [f"<p>{esc(name)}: \\[{esc(tex)}\\]</p>" if tex else
+                f"<p>{esc(name)} = <code>{esc(text)}</code></p>" for name, text, tex in s.equations]
+    return "\n".join(out)
+
+
+def html_document(s: Sections, svg: str | None) -> str:
+    """A whole self-contained HTML page (the drawing inline as SVG)."""
+    return ("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+            f"<title>{html.escape(s.title)}</title>\n<style>{_CSS}</style>\n</head>\n<body>\n"
+            + html_fragment(s, svg) + "\n</body>\n</html>\n")
+
+
+# --- LaTeX -----------------------------------------------------------------------------------
+
+_TEX_SPECIAL = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#",
+                "_": r"\_", "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}",
+                "^": r"\textasciicircum{}", "±": r"$\pm$", "−": "-", "×": r"$\times$",
+                "÷": r"$\div$", "µ": r"$\mu$", "<": r"$<$", ">": r"$>$", "ȳ": r"$\bar{y}$"}
+
+
+def tex_escape(text: str) -> str:
+    """Text safe inside a LaTeX paragraph or table cell."""
+    return "".join(_TEX_SPECIAL.get(ch, ch) for ch in text)
+
+
+def _tex_table(head: list[str], rows: list[list[str]], spec: str) -> list[str]:
+    lines = [r"\begin{longtable}{" + spec + "}", r"\hline",
+             " & ".join(r"\textbf{" + tex_escape(h) + "}" for h in head) + r" \\", r"\hline"]
+    lines += [" & ".join(tex_escape(c) for c in row) + r" \\" for row in rows]
+    lines += [r"\hline", r"\end{longtable}"]
+    return lines
+
+
+def latex_document(s: Sections, drawing_file: str | None) -> str:
+    """A whole LaTeX document (article class; needs graphicx, longtable and amsmath)."""
+    out = [r"\documentclass{article}", r"\usepackage[T1]{fontenc}", r"\usepackage[utf8]{inputenc}",
+           r"\usepackage{graphicx,longtable,amsmath}", r"\usepackage[margin=2cm]{geometry}",
+           r"\begin{document}", r"\section*{" + tex_escape(s.title) + "}",
+           tex_escape(f"File {s.file}, lengths in {s.units}. {SIGN_CONVENTION}."), ""]
+    for caution in s.cautions:
+        out += [r"\noindent\fbox{\parbox{\linewidth}{" + tex_escape(caution) + "}}", ""]
+    if drawing_file:
+        out += [r"\begin{figure}[h]", r"\centering",
+                r"\includegraphics[width=\linewidth]{" + drawing_file + "}",
+                r"\caption{Cross-section with paraxial marginal and chief rays.}",
+                r"\end{figure}", ""]
+    out += [r"\subsection*{Layout}"] + _tex_table(LAYOUT_HEADINGS, s.layout, "rllllll")
+    out += [r"\subsection*{Setting}", r"\begin{itemize}"]
+    out += [r"\item " + tex_escape(line) for line in s.setting] + [r"\end{itemize}"]
+    out += [r"\subsection*{First-order properties}"]
+    out += _tex_table(["quantity", "value"], s.first_order, "ll")
+    out += [tex_escape(f"Note: {n}") + r"\par" for n in s.notes]
+    out += [r"\subsection*{Expectations}"]
+    if s.expectations:
+        out += _tex_table(["status", "line", "statement", "result"], s.expectations,
+                          r"llp{0.3\linewidth}p{0.4\linewidth}")
+    else:
+        out += ["The script states no expectations."]
+    if s.equations:
+        out += [r"\subsection*{Derived equations}"]
+        for name, text, tex in s.equations:
+            out += [tex_escape(name) + ":", r"\begin{equation*}", tex or r"\text{"
+                    + tex_escape(text) + "}", r"\end{equation*}"]
+    out += [r"\end{document}"]
+    return "\n".join(out) + "\n"
+
+
+# --- one entry point -------------------------------------------------------------------------
+
+def render_document(path: str, doc_format: str, output: str | None = None) -> Document:
+    """Build the report of one script.
+
+    Args:
+        path: the layout script.
+        doc_format: md, html or latex.
+        output: where the document will be written; the drawing file (SVG for Markdown, PDF
+            for LaTeX) is written beside it. None: Markdown embeds the drawing as a data URI,
+            LaTeX leaves it out (there is no file to include), HTML always embeds SVG.
+
+    Returns:
+        The document's text and whether every expectation holds.
+    """
+    from ..checks import check_program
+    from ..engines.firstorder import first_order
+    from ..interpret.interpreter import load_file
+    from .drawing import drawing_bytes
+
+    program = load_file(path)
+    results = first_order(program.system)
+    sections = gather(program, results, check_program(program, results))
+    cautions = tuple(getattr(program, "hazards", ()) or ())
+    if doc_format == "html":
+        svg = drawing_bytes(program.system, "svg", cautions).decode("utf-8")
+        svg = svg[svg.index("<svg"):]  # inline: without the XML prolog and doctype
+        return Document(html_document(sections, svg), sections.all_hold)
+    if doc_format == "md":
+        if output is None:
+            data = base64.b64encode(drawing_bytes(program.system, "svg", cautions)).decode()
+            link = f"data:image/svg+xml;base64,{data}"
+        else:
+            picture = Path(output).with_name(Path(output).stem + "-drawing.svg")
+            picture.write_bytes(drawing_bytes(program.system, "svg", cautions))
+            link = picture.name
+        return Document(markdown(sections, link), sections.all_hold)
+    picture_name = None
+    if output is not None:
+        picture = Path(output).with_name(Path(output).stem + "-drawing.pdf")
+        picture.write_bytes(drawing_bytes(program.system, "pdf", cautions))
+        picture_name = picture.name
+    return Document(latex_document(sections, picture_name), sections.all_hold)
