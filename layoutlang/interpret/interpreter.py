@@ -22,6 +22,8 @@ from ..syntax.parser import parse
 from ..system import IDEAL, MIRROR, REFRACT, Boundary, ImageSpec, Medium, ObjectSpec
 from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
+from .raystatements import RayStatements, is_ray_quantity
+from ..engines.raysettings import RaySettings
 
 __all__ = ["Expectation", "Program", "interpret", "load_file", "PREDEFINED_MEDIA"]
 
@@ -41,6 +43,8 @@ class Expectation:
     relative: bool
     span: Span
     text: str  # the statement as written, for reports
+    field: float | None = None  # ray quantities: the field fraction it is taken at
+    scale: str = ""  # 'depth of focus' when the value is in depths of focus
 
 
 @dataclass(frozen=True)
@@ -53,6 +57,8 @@ class Program:
     reports: tuple[tuple[str, ...], ...] = ()  # each `report`: quantity names (empty: all)
     hazards: tuple[str, ...] = ()  # declared with `hazard`, in script order
     names: dict[str, Measure] = field(default_factory=dict, compare=False)
+    rays: RaySettings = RaySettings()  # what `report exact rays` samples (raystatements.py)
+    ray_reports: tuple[str, ...] = ()  # 'exact rays', 'seidel sums', in script order
 
     def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
         from ..notebook import program_html
@@ -75,7 +81,7 @@ def interpret(script: t.Script, base: Path | None = None) -> Program:
     return _Interpreter(script, base or Path.cwd()).run()
 
 
-class _Interpreter:
+class _Interpreter(RayStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -464,12 +470,14 @@ class _Interpreter:
 
             self.file, self.lines = self.stop_context
             system = replace(system, stop=self.build_stop(self.stop_node, system))
+        rays = self.ray_settings(system)
         expectations = []
         for node, (self.file, self.lines) in self.expect_nodes:
             expectations.append(self.expectation(node))
         expectations = tuple(expectations)
         return Program(self.script.file, system, expectations, tuple(self.reports),
-                       tuple(self.hazards), dict(self.names))
+                       tuple(self.hazards), dict(self.names), rays=rays,
+                       ray_reports=self.ray_reports())
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -513,6 +521,8 @@ class _Interpreter:
         return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
 
     def expectation(self, node: t.Expect) -> Expectation:
+        if isinstance(node, t.ExpectRays) or is_ray_quantity(node.quantity.text):
+            return self.ray_expectation(node)
         info = self.quantity(node.quantity)
         convert = {LENGTH: lambda e: self.length(e, "the expected value"),
                    POWER: lambda e: self.power(e, "the expected value"),
@@ -543,6 +553,7 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for name, method in vars(_Interpreter).items()
+    for cls in (RayStatements, _Interpreter)
+    for name, method in vars(cls).items()
     if name.startswith("statement_")
 }

@@ -266,6 +266,34 @@ class _Builder(Transformer):
     def leave(self, meta, items):
         return t.Leave(pos=_pos(meta))
 
+    # --- exact rays and aberrations (grammar/rays.lark) -------------------------------------
+    def sample_pupils(self, meta, items):
+        return t.Sample("pupils", tuple(items), pos=_pos(meta))
+
+    def sample_fields(self, meta, items):
+        return t.Sample("fields", tuple(items), pos=_pos(meta))
+
+    def sample_grid(self, meta, items):
+        return t.Sample("grid", (items[0],), pos=_pos(meta))
+
+    def focus_tolerance(self, meta, items):
+        return t.FocusTolerance(items[0], pos=_pos(meta))
+
+    def report_exact_rays(self, meta, items):
+        return t.ReportRays("exact rays", pos=_pos(meta))
+
+    def report_seidel_sums(self, meta, items):
+        return t.ReportRays("seidel sums", pos=_pos(meta))
+
+    def expect_at_field(self, meta, items):
+        quantity, field, op, value, tolerance = items
+        return t.ExpectRays(quantity, op, value, tolerance, field, pos=_pos(meta))
+
+    def expect_in_depths(self, meta, items):
+        quantity, op, value = items
+        return t.ExpectRays(quantity, op, value, None, None, "depth of focus", pos=_pos(meta))
+
+
 _BUILDER = _Builder()
 
 

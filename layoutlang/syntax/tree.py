@@ -16,6 +16,7 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
+    "Sample", "FocusTolerance", "ReportRays", "ExpectRays",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
 ]
@@ -307,3 +308,40 @@ class Help(SessionCommand):
 @dataclass(frozen=True)
 class Leave(SessionCommand):
     pass
+
+
+# --- exact rays and aberrations (grammar/rays.lark) ------------------------------------------
+
+
+@dataclass(frozen=True)
+class Sample(Statement):
+    """`sample pupils ...`, `sample fields ...` or `sample grid N`: what the ray report traces."""
+
+    what: str  # 'pupils' | 'fields' | 'grid'
+    values: tuple[Expr, ...]
+
+
+@dataclass(frozen=True)
+class FocusTolerance(Statement):
+    """`focus tolerance D`: judge the real focus and image height against D."""
+
+    value: Expr
+
+
+@dataclass(frozen=True)
+class ReportRays(Statement):
+    """`report exact rays` or `report seidel sums`."""
+
+    what: str  # 'exact rays' | 'seidel sums'
+
+
+@dataclass(frozen=True)
+class ExpectRays(Statement):
+    """`expect Q at field F < V` or `expect Q < V depth of focus` (scale 'depth of focus')."""
+
+    quantity: Quantity
+    op: str
+    value: Expr
+    tolerance: Tolerance | None = None
+    field: Expr | None = None
+    scale: str = ""

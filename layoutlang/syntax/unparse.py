@@ -186,3 +186,25 @@ _RULES: dict[str, Callable] = {
     "Help": lambda n: "help",
     "Leave": lambda n: "leave",
 }
+
+
+# --- exact rays and aberrations (grammar/rays.lark) -----------------------------------------
+
+
+def _ExpectRays(node: t.ExpectRays) -> str:
+    at = "" if node.field is None else f" at field {unparse_expr(node.field)}"
+    text = f"expect {node.quantity.text}{at} {node.op} {unparse_expr(node.value)}"
+    if node.scale:
+        return f"{text} {node.scale}"
+    if node.tolerance is not None:
+        word = "±" if node.tolerance.kind == "±" else "within"
+        text += f" {word} {unparse_expr(node.tolerance.value)}"
+    return text
+
+
+_RULES.update({
+    "Sample": lambda n: f"sample {n.what} " + ", ".join(unparse_expr(v) for v in n.values),
+    "FocusTolerance": lambda n: f"focus tolerance {unparse_expr(n.value)}",
+    "ReportRays": lambda n: f"report {n.what}",
+    "ExpectRays": _ExpectRays,
+})
