@@ -6,7 +6,7 @@ from dataclasses import dataclass
 
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
-from .quantities import POWER
+from .quantities import PERCENT, POWER, RAY_QUANTITIES
 from .measure import LENGTH_UNITS
 from .testing import Outcome, compare
 
@@ -26,13 +26,15 @@ class CheckResult:
 def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
-    return {"length": units, "power": "diopters"}.get(kind, "")
+    return {"length": units, "power": "diopters", PERCENT: "%"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
     """Convert an internal value (powers are per layout unit) to its display unit."""
     if kind == POWER and isinstance(value, (int, float)):
         return value * 1000.0 / LENGTH_UNITS[units]
+    if kind == PERCENT and isinstance(value, (int, float)):
+        return value * 100.0
     return value
 
 
@@ -43,12 +45,25 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
     checked = []
     for expectation in program.expectations:
         kind = expectation.kind
-        actual = to_display(results[expectation.quantity], kind, units)
+        label = expectation.quantity
+        if expectation.quantity in RAY_QUANTITIES:  # exact rays or Seidel sums, traced once
+            from .engines.rayquantities import ray_quantities
+
+            rays = ray_quantities(program.system, program.rays, results)
+            value = rays.value(expectation.quantity, expectation.field, expectation.scale)
+            if expectation.field is not None:
+                label = f"{label} at field {expectation.field:g}"
+            if expectation.scale:
+                label = f"size of the {label} in depths of focus"
+        else:
+            value = results[expectation.quantity]
+        actual = to_display(value, kind, units)
         expected = to_display(expectation.expected, kind, units)
         tolerance = expectation.tolerance
         if tolerance is not None and not expectation.relative:
             tolerance = to_display(tolerance, kind, units)
+        unit = "depths of focus" if expectation.scale else display_unit(kind, units)
         outcome = compare(actual, expectation.op, expected, tolerance, expectation.relative,
-                          display_unit(kind, units), expectation.quantity)
+                          unit, label)
         checked.append(CheckResult(expectation, outcome))
     return checked

@@ -10,9 +10,11 @@ from __future__ import annotations
 import difflib
 from dataclasses import dataclass
 
-__all__ = ["QuantityInfo", "QUANTITIES", "ALIASES", "lookup", "REPORT_ORDER"]
+__all__ = ["QuantityInfo", "QUANTITIES", "ALIASES", "lookup", "REPORT_ORDER", "RAY_QUANTITIES", "PERCENT",
+           "FIELD_DEFAULTS"]
 
 LENGTH, POWER, NUMBER = "length", "power", "number"
+PERCENT = "percent"  # kept as a fraction, shown and written in percent
 
 
 @dataclass(frozen=True)
@@ -55,8 +57,37 @@ _ROWS = [
     ("defocus", LENGTH, "paraxial image minus image plane, along the path"),
 ]
 
+#: Quantities of the exact ray trace and the third-order sums (engines/rayquantities.py).
+_RAY_ROWS = [
+    ("marginal focus shift", LENGTH, "real focus of the full-aperture marginal ray minus the "
+                                     "paraxial focus, along the path (longitudinal spherical)"),
+    ("transverse spherical aberration", LENGTH, "height of the full-aperture marginal ray on "
+                                                "the paraxial focal plane"),
+    ("best focus shift", LENGTH, "plane of least RMS spot (axial bundle) minus the paraxial focus"),
+    ("depth of focus", LENGTH, "wavelength / NA² (the paraxial focus is judged against half)"),
+    ("rms spot radius", LENGTH, "RMS radius about the centroid on the image plane, at a field"),
+    ("largest spot radius", LENGTH, "largest ray distance from the centroid, at a field"),
+    ("real image height", LENGTH, "real chief ray height on the image plane, at a field"),
+    ("distortion", PERCENT, "(real - paraxial chief ray height) / paraxial, at a field"),
+    ("spherical sum", LENGTH, "Seidel sum S I (third-order spherical aberration)"),
+    ("coma sum", LENGTH, "Seidel sum S II (third-order coma)"),
+    ("astigmatism sum", LENGTH, "Seidel sum S III (third-order astigmatism)"),
+    ("field curvature sum", LENGTH, "Seidel sum S IV (Petzval field curvature)"),
+    ("distortion sum", LENGTH, "Seidel sum S V (third-order distortion)"),
+    ("axial colour sum", LENGTH, "first-order longitudinal chromatic sum C I"),
+    ("lateral colour sum", LENGTH, "first-order transverse chromatic sum C II"),
+    ("petzval radius", LENGTH, "radius of the Petzval surface, + when its centre is downstream"),
+]
+
+#: The field (fraction of the full field) a field-dependent ray quantity is taken at when the
+#: script does not say `at field ...`.
+FIELD_DEFAULTS = {"rms spot radius": 0.0, "largest spot radius": 0.0,
+                  "real image height": 1.0, "distortion": 1.0}
+
+RAY_QUANTITIES = frozenset(name for name, _, _ in _RAY_ROWS)
+
 QUANTITIES: dict[str, QuantityInfo] = {name: QuantityInfo(name, kind, meaning)
-                                       for name, kind, meaning in _ROWS}
+                                       for name, kind, meaning in _ROWS + _RAY_ROWS}
 
 #: Other words people use for the same quantity.
 ALIASES = {
@@ -68,6 +99,12 @@ ALIASES = {
     "working f-number": "f-number",
     "image numerical aperture": "numerical aperture",
     "track length": "total length",
+    "focus shift": "marginal focus shift",
+    "longitudinal spherical aberration": "marginal focus shift",
+    "spot radius": "rms spot radius",
+    "petzval field radius": "petzval radius",
+    "axial color sum": "axial colour sum",
+    "lateral color sum": "lateral colour sum",
 }
 
 #: The order of the first-order report.

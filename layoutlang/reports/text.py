@@ -11,7 +11,7 @@ import math
 from ..checks import CheckResult, display_unit, to_display
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
-from ..quantities import QUANTITIES, REPORT_ORDER
+from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
 from ..testing import format_number
 
@@ -152,6 +152,16 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
     for names in program.reports:
         if names:
             lines += ["", "requested: " + ", ".join(names)]
-            lines += first_order_table(results, system.units, list(names))
+            plain = [name for name in names if name not in RAY_QUANTITIES]
+            if plain:
+                lines += first_order_table(results, system.units, plain)
+            if len(plain) < len(names):  # exact-ray and Seidel quantities (reports/rays.py)
+                from .rays import requested_ray_lines
+
+                lines += requested_ray_lines(program, results, names)
+    if program.ray_reports:
+        from .rays import ray_sections
+
+        lines += ray_sections(program, results)
     lines += ["", "expectations"] + expectation_lines(checked)
     return "\n".join(lines) + "\n"

@@ -1,0 +1,469 @@
+"""Where the small-angle numbers stop holding: real against paraxial focus, image height and spot.
+
+Built on `realrays` (exact trace) and `firstorder` (the paraxial numbers it is compared with).
+Rays are launched from the object point through the entrance pupil and aimed at the real stop
+(a few vectorized Newton steps, so pupil aberration does not skew the pupil fractions).
+Every result is a plain float in the layout's units or an `Unavailable` with the reason;
+lost rays are counted and named by surface, never dropped silently, and no NaN leaves here.
+
+Conventions (common practice): pupil fractions are of the stop radius, field fractions of the
+object's field angle or height; focus positions are along the path after the last vertex,
+positive downstream; the depth of focus is λ/NA² with NA the paraxial image-side numerical
+aperture (the real focus is judged against half of it, ±λ/(2NA²) about the paraxial focus);
+the Airy radius is 0.61 λ/NA. Spot radii are about the spot's centroid.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any, Sequence
+
+import numpy as np
+
+from ..measure import LENGTH_UNITS
+from ..system import System
+from . import paraxial, realrays
+from .firstorder import FirstOrder, Unavailable, first_order
+from .raysettings import RaySettings
+from .realrays import OK, STATUS_WORDS, Geometry, Rays
+
+__all__ = [
+    "MarginalRow", "ChiefRow", "SpotRow", "RayAnalysis", "RaySetup",
+    "analyse", "setup", "launch", "spot", "marginal", "chief", "best_focus_shift",
+    "DEFAULT_WAVELENGTH_NM", "wavelength_sets", "indices_at",
+]
+
+DEFAULT_WAVELENGTH_NM = 587.6  # helium d line, used when the script names no wavelength
+
+Value = Any  # float | Unavailable
+
+
+@dataclass(frozen=True)
+class RaySetup:
+    """Everything the launches need, from the layout and its first-order properties."""
+
+    system: System
+    geo: Geometry
+    indices: tuple[Any, ...]
+    entrance_z: float
+    entrance_radius: float
+    stop_radius: float
+    image_z: float  # z of the image plane
+    image_sense: int
+    paraxial_focus: float  # paraxial image distance after the last vertex
+    wavelength: float  # in layout units
+    numerical_aperture: float
+
+
+def wavelength_sets(system: System) -> list[tuple[float, tuple[Any, ...]]]:
+    """(wavelength in layout units, index of each space) for every wavelength, primary first.
+
+    Media with a dispersion model give their index at each wavelength through
+    `System.indices(wavelength)`; media with a constant index are the same at every one.
+    """
+    nm = 1e-6 / LENGTH_UNITS[system.units]
+    primary = system.primary_wavelength
+    if primary is None:
+        return [(DEFAULT_WAVELENGTH_NM * nm, tuple(float(n) for n in system.indices()))]
+    ordered = [primary] + [w for w in system.wavelengths if w is not primary]
+    return [(float(w.value), tuple(float(n) for n in indices_at(system, w.value)))
+            for w in ordered]
+
+
+def indices_at(system: System, wavelength: float) -> list[Any]:
+    """The index of each space at a wavelength (layout units)."""
+    try:
+        return system.indices(wavelength)
+    except TypeError:  # a layout value without dispersion support: constant indices
+        return system.indices()
+
+
+def setup(system: System, results: FirstOrder | None = None,
+          indices: Sequence[Any] | None = None, wavelength: float | None = None
+          ) -> RaySetup | Unavailable:
+    """Prepare real-ray launches, or say why the layout cannot have them."""
+    results = results or first_order(system)
+    if system.stop is None:
+        return Unavailable("none: real rays need a stop to fill the pupil")
+    for name in ("entrance pupil position", "entrance pupil diameter", "stop diameter",
+                 "image distance", "image plane distance", "numerical aperture"):
+        value = results[name]
+        if isinstance(value, Unavailable):
+            return Unavailable(f"none: the {name} is {value}")
+    sets = wavelength_sets(system)
+    if indices is None:
+        wavelength, indices = sets[0]
+    elif wavelength is None:
+        wavelength = sets[0][0]
+    stop_radius = float(results["stop diameter"]) / 2
+    geo = realrays.geometry(system, stop_radius)
+    senses = system.directions()
+    plane = float(results["image plane distance"])
+    image_z = geo.vertex_z[-1] + senses[-1] * plane
+    na = float(results["numerical aperture"])
+    return RaySetup(system, geo, tuple(indices), float(results["entrance pupil position"]),
+                    float(results["entrance pupil diameter"]) / 2, stop_radius, image_z,
+                    senses[-1], float(results["image distance"]), float(wavelength), na)
+
+
+def _object_rays(s: RaySetup, field: float, ex: np.ndarray, ey: np.ndarray) -> Rays:
+    """Rays from the object point at `field` (fraction) through entrance-pupil-plane points
+    (ex, ey) given in units of the entrance pupil radius."""
+    obj = s.system.object
+    px, py = ex * s.entrance_radius, ey * s.entrance_radius
+    if obj.at_infinity:
+        slope = -math.tan(field * float(obj.field_angle))  # downward for a positive angle
+        return Rays.start(px, py, s.entrance_z, 0.0, slope, 1.0)
+    distance = float(obj.distance)
+    height = field * float(obj.height)
+    return Rays.start(0.0, height, -distance, px, py - height, s.entrance_z + distance)
+
+
+def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, aim: bool = True,
+           iterations: int = 6) -> Rays:
+    """Rays from the object point at `field` that pass the stop at (px, py)·stop radius.
+
+    Starts from the paraxial entrance pupil and, when `aim` is set, corrects each ray with a
+    few Newton steps (finite-difference Jacobian, all rays at once) so that its real stop
+    intercept hits the target. Rays that cannot be aimed keep their paraxial start.
+    """
+    px = np.atleast_1d(np.asarray(px, dtype=float))
+    py = np.atleast_1d(np.asarray(py, dtype=float))
+    px, py = np.broadcast_arrays(px, py)
+    # the paraxial guess: entrance pupil fractions equal stop fractions
+    ex, ey = px.copy(), py.copy()
+    if aim and s.geo.stop_step is not None:
+        head = s.geo.up_to_stop()
+        tx, ty = px * s.stop_radius, py * s.stop_radius
+        scale = max(s.stop_radius, 1e-300)
+        h = 1e-6
+        for _ in range(iterations):
+            base = realrays.trace(_object_rays(s, field, ex, ey), s.geo, s.indices, head)
+            fx, fy = base.x - tx, base.y - ty
+            if np.all(np.abs(np.nan_to_num(fx, nan=0)) + np.abs(np.nan_to_num(fy, nan=0))
+                      < 1e-12 * scale):
+                break
+            dx = realrays.trace(_object_rays(s, field, ex + h, ey), s.geo, s.indices, head)
+            dy = realrays.trace(_object_rays(s, field, ex, ey + h), s.geo, s.indices, head)
+            j11, j21 = (dx.x - base.x) / h, (dx.y - base.y) / h
+            j12, j22 = (dy.x - base.x) / h, (dy.y - base.y) / h
+            with np.errstate(invalid="ignore", divide="ignore"):
+                det = j11 * j22 - j12 * j21
+                step_x = (j22 * fx - j12 * fy) / det
+                step_y = (j11 * fy - j21 * fx) / det
+            good = np.isfinite(step_x) & np.isfinite(step_y)
+            ex = np.where(good, ex - np.where(good, step_x, 0), ex)
+            ey = np.where(good, ey - np.where(good, step_y, 0), ey)
+    rays = _object_rays(s, field, ex, ey)
+    return realrays.trace(rays, s.geo, s.indices)
+
+
+def _to_plane(rays: Rays, z: float) -> tuple[np.ndarray, np.ndarray]:
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = (z - rays.z) / rays.kz
+        return rays.x + t * rays.kx, rays.y + t * rays.ky
+
+
+def _lost_words(rays: Rays, geo: Geometry, mask: np.ndarray | None = None) -> str:
+    """'3 outside the clear diameter at back; 1 missed the surface front' or ''."""
+    status, where = rays.status, rays.failed_at
+    if mask is not None:
+        status, where = status[mask], where[mask]
+    counts: dict[tuple[int, int], int] = {}
+    for code, step in zip(status.tolist(), where.tolist()):
+        if code != OK:
+            counts[(code, step)] = counts.get((code, step), 0) + 1
+    parts = []
+    for (code, step), count in sorted(counts.items(), key=lambda item: (item[0][1], item[0][0])):
+        parts.append(f"{count} {STATUS_WORDS[code]} at {_step_name(geo, step)}")
+    return "; ".join(parts)
+
+
+def _step_name(geo: Geometry, step: int) -> str:
+    name = geo.steps[step].name
+    return "the stop" if geo.steps[step].boundary < 0 else f"'{name}'"
+
+
+@dataclass(frozen=True)
+class MarginalRow:
+    """One axial ray at a pupil fraction: where it crosses the axis against the paraxial focus."""
+
+    pupil: float
+    real_focus: Value  # real axis crossing after the last vertex, along the path
+    paraxial_focus: float
+    longitudinal: Value  # real - paraxial (longitudinal spherical aberration)
+    transverse: Value  # height at the paraxial focus plane (transverse spherical aberration)
+    lost: str = ""
+
+
+@dataclass(frozen=True)
+class ChiefRow:
+    """One chief ray at a field fraction: real against paraxial height on the image plane."""
+
+    field: float
+    real_height: Value
+    paraxial_height: float
+    difference: Value
+    distortion: Value  # (real - paraxial) / paraxial, a fraction
+    lost: str = ""
+
+
+@dataclass(frozen=True)
+class SpotRow:
+    """The spot of a pupil grid at one field and wavelength on the image plane."""
+
+    field: float
+    wavelength: float
+    rays: int
+    used: int
+    rms_radius: Value
+    max_radius: Value
+    lost: str = ""
+
+
+def marginal(s: RaySetup, pupils: Sequence[float]) -> list[MarginalRow]:
+    """Axial rays in the meridional plane at each pupil fraction (0 is skipped: no crossing)."""
+    pupils = [p for p in pupils if p != 0]
+    if not pupils:
+        return []
+    rays = launch(s, 0.0, np.zeros(len(pupils)), np.array(pupils, dtype=float))
+    last_z = s.geo.vertex_z[-1]
+    focus_z = last_z + s.image_sense * s.paraxial_focus
+    _, y_at_focus = _to_plane(rays, focus_z)
+    rows = []
+    for i, pupil in enumerate(pupils):
+        lost = _lost_words(rays, s.geo, np.arange(len(pupils)) == i)
+        if rays.status[i] in (realrays.MISSED, realrays.TOTAL_REFLECTION):
+            why = Unavailable("none: the ray is lost")
+            rows.append(MarginalRow(pupil, why, s.paraxial_focus, why, why, lost))
+            continue
+        if rays.ky[i] == 0:
+            why = Unavailable("none: the ray leaves parallel to the axis")
+            rows.append(MarginalRow(pupil, why, s.paraxial_focus, why, why, lost))
+            continue
+        cross_z = rays.z[i] - rays.y[i] * rays.kz[i] / rays.ky[i]
+        real = s.image_sense * (cross_z - last_z)
+        rows.append(MarginalRow(pupil, float(real), s.paraxial_focus,
+                                float(real - s.paraxial_focus), float(y_at_focus[i]), lost))
+    return rows
+
+
+def paraxial_chief_height(s: RaySetup, field: float) -> float:
+    """Height of the paraxial chief ray on the image plane at a field fraction."""
+    system = s.system
+    obj = system.object
+    n0 = s.indices[0]
+    if obj.at_infinity:
+        nu0 = -n0 * math.tan(field * float(obj.field_angle))
+        y0 = -s.entrance_z * nu0 / n0
+    else:
+        distance, height = float(obj.distance), field * float(obj.height)
+        slope = -height / (s.entrance_z + distance)
+        y0, nu0 = height + distance * slope, n0 * slope
+    steps = _paraxial_steps(system, s.indices)
+    y, nu = paraxial.trace(y0, nu0, steps)
+    plane = s.image_sense * (s.image_z - s.geo.vertex_z[-1])
+    return float(y + plane / s.indices[-1] * nu)
+
+
+def _paraxial_steps(system: System, indices: Sequence[Any]) -> list[paraxial.Step]:
+    """Paraxial steps with these indices (the layout's own media give `steps_of(system)`)."""
+    from dataclasses import replace
+
+    media = list(system.media)
+    # one medium per space with the given index, so each wavelength gets its own steps
+    spaces = [replace(media[0], name=f"space {i}", index=float(n)) for i, n in enumerate(indices)]
+    boundaries = tuple(replace(b, medium_after=f"space {i + 1}")
+                       for i, b in enumerate(system.boundaries))
+    shadow = replace(system, media=tuple(spaces), start_medium="space 0", boundaries=boundaries)
+    return paraxial.steps_of(shadow)
+
+
+def chief(s: RaySetup, fields: Sequence[float]) -> list[ChiefRow]:
+    """Chief rays (aimed at the real stop centre) at each field fraction."""
+    fields = list(fields)
+    rows = []
+    for value in fields:
+        rays = launch(s, value, np.zeros(1), np.zeros(1))
+        x, y = _to_plane(rays, s.image_z)
+        para = paraxial_chief_height(s, value)
+        lost = _lost_words(rays, s.geo)
+        if rays.status[0] in (realrays.MISSED, realrays.TOTAL_REFLECTION) or not np.isfinite(y[0]):
+            why = Unavailable("none: the chief ray is lost")
+            rows.append(ChiefRow(value, why, para, why, why, lost))
+            continue
+        real = float(y[0])
+        if para == 0:
+            distortion = Unavailable("none on the axis") if value == 0 else \
+                Unavailable("none: the paraxial image height is zero")
+        else:
+            distortion = (real - para) / para
+        rows.append(ChiefRow(value, real, para, real - para, distortion, lost))
+    return rows
+
+
+def pupil_grid(points: int) -> tuple[np.ndarray, np.ndarray]:
+    """A square grid of pupil fractions inside the unit circle (`points` across)."""
+    if points < 2:
+        return np.zeros(1), np.zeros(1)
+    line = np.linspace(-1.0, 1.0, points)
+    px, py = np.meshgrid(line, line)
+    inside = px * px + py * py <= 1.0 + 1e-12
+    return px[inside], py[inside]
+
+
+def spot(s: RaySetup, field: float, points: int = 17, z: float | None = None) -> SpotRow:
+    """RMS and largest radius (about the centroid) of the spot of a pupil grid on a plane."""
+    px, py = pupil_grid(points)
+    rays = launch(s, field, px, py)
+    x, y = _to_plane(rays, s.image_z if z is None else z)
+    used = rays.ok & np.isfinite(x) & np.isfinite(y)
+    lost = _lost_words(rays, s.geo)
+    if not used.any():
+        why = Unavailable("none: every ray is lost")
+        return SpotRow(field, s.wavelength, len(rays), 0, why, why, lost)
+    dx, dy = x[used] - x[used].mean(), y[used] - y[used].mean()
+    r2 = dx * dx + dy * dy
+    return SpotRow(field, s.wavelength, len(rays), int(used.sum()), float(math.sqrt(r2.mean())),
+                   float(math.sqrt(r2.max())), lost)
+
+
+def best_focus_shift(s: RaySetup, points: int = 17) -> Value:
+    """Distance (along the path) from the paraxial focus to the plane of least RMS spot of the
+    axial bundle. Closed form: the RMS radius is quadratic in the plane's position."""
+    px, py = pupil_grid(points)
+    rays = launch(s, 0.0, px, py)
+    used = rays.ok
+    if used.sum() < 2:
+        return Unavailable("none: too few rays reach the image")
+    focus_z = s.geo.vertex_z[-1] + s.image_sense * s.paraxial_focus
+    x, y = _to_plane(rays, focus_z)
+    x, y = x[used], y[used]
+    # position on the plane δ further along z: x + δ·kx/kz
+    tx, ty = rays.kx[used] / rays.kz[used], rays.ky[used] / rays.kz[used]
+    x, y, tx, ty = x - x.mean(), y - y.mean(), tx - tx.mean(), ty - ty.mean()
+    spread = float(np.sum(tx * tx + ty * ty))
+    if spread == 0:
+        return Unavailable("none: the rays leave parallel")
+    shift_z = -float(np.sum(x * tx + y * ty)) / spread
+    return s.image_sense * shift_z
+
+
+@dataclass(frozen=True)
+class RayAnalysis:
+    """The paraxial validity report and the ray aberrations of one layout."""
+
+    settings: RaySettings
+    wavelength: float
+    numerical_aperture: Value
+    depth_of_focus: Value
+    airy_radius: Value
+    marginal: tuple[MarginalRow, ...] = ()
+    chief: tuple[ChiefRow, ...] = ()
+    spots: tuple[SpotRow, ...] = ()
+    best_focus_shift: Value = 0.0
+    focus_verdict: str = ""
+    height_verdict: str = ""
+    unavailable: Unavailable | None = None
+    setups: tuple[Any, ...] = field(default=(), compare=False, repr=False)
+
+    def marginal_at(self, pupil: float = 1.0) -> MarginalRow | Unavailable:
+        for row in self.marginal:
+            if abs(row.pupil - pupil) < 1e-12:
+                return row
+        return Unavailable(f"none: pupil {pupil:g} was not sampled")
+
+    def spot_at(self, field: float, wavelength: int = 0) -> SpotRow | Unavailable:
+        """The spot at a field fraction (traced on demand if it was not sampled)."""
+        for row in self.spots:
+            if abs(row.field - field) < 1e-12 and row.wavelength == self.setups[wavelength].wavelength:
+                return row
+        if self.unavailable is not None:
+            return self.unavailable
+        return spot(self.setups[wavelength], field, self.settings.grid)
+
+    def chief_at(self, field: float) -> ChiefRow | Unavailable:
+        for row in self.chief:
+            if abs(row.field - field) < 1e-12:
+                return row
+        if self.unavailable is not None:
+            return self.unavailable
+        return chief(self.setups[0], [field])[0]
+
+
+def analyse(system: System, settings: RaySettings = RaySettings(),
+            results: FirstOrder | None = None) -> RayAnalysis:
+    """Trace the marginal, chief and spot rays of a layout and judge the paraxial numbers."""
+    results = results or first_order(system)
+    sets = wavelength_sets(system)
+    setups = []
+    for wavelength, indices in sets:
+        made = setup(system, results, indices, wavelength)
+        if isinstance(made, Unavailable):
+            return RayAnalysis(settings, sets[0][0], made, made, made, unavailable=made)
+        setups.append(made)
+    primary = setups[0]
+    na = primary.numerical_aperture
+    if na == 0:
+        why = Unavailable("none: the image-side beam is collimated")
+        dof: Value = why
+        airy: Value = why
+    else:
+        dof = primary.wavelength / (na * na)
+        airy = 0.61 * primary.wavelength / na
+    margins = tuple(marginal(primary, settings.pupils))
+    chiefs = tuple(chief(primary, settings.fields))
+    spots = tuple(spot(s, f, settings.grid) for s in setups for f in settings.fields)
+    best = best_focus_shift(primary, settings.grid)
+    units = system.units
+    focus_verdict = _focus_verdict(margins, dof, settings.tolerance, units)
+    height_verdict = _height_verdict(chiefs, airy, settings.tolerance, units)
+    return RayAnalysis(settings, primary.wavelength, na, dof, airy, margins, chiefs, spots, best,
+                       focus_verdict, height_verdict, None, tuple(setups))
+
+
+def _fmt(value: float, units: str) -> str:
+    from ..testing import format_number
+
+    return f"{format_number(value, 4)} {units}"
+
+
+def _focus_verdict(rows, dof: Value, tolerance: float | None, units: str) -> str:
+    shifts = [abs(r.longitudinal) for r in rows if not isinstance(r.longitudinal, Unavailable)]
+    lost = [r for r in rows if isinstance(r.longitudinal, Unavailable)]
+    if not shifts:
+        return "no marginal ray reaches the image: the paraxial focus cannot be judged"
+    worst = max(shifts)
+    if tolerance is not None:
+        limit, what = tolerance, f"the stated tolerance {_fmt(tolerance, units)}"
+    elif isinstance(dof, Unavailable):
+        return f"largest real-minus-paraxial focus {_fmt(worst, units)} (no depth of focus: {dof})"
+    else:
+        limit, what = dof / 2, (f"half the depth of focus (λ/NA² = {_fmt(dof, units)}, "
+                                f"so ±{_fmt(dof / 2, units)})")
+    ratio = worst / limit if limit else math.inf
+    tail = f"; {len(lost)} marginal ray(s) lost" if lost else ""
+    if worst <= limit:
+        return (f"paraxial focus holds: the real focus stays within {what} "
+                f"(largest shift {_fmt(worst, units)}){tail}")
+    times = f"{ratio:.3g} times" if math.isfinite(ratio) else "beyond"
+    return (f"paraxial focus does not hold: the real focus moves {_fmt(worst, units)}, "
+            f"{times} {what}{tail}")
+
+
+def _height_verdict(rows, airy: Value, tolerance: float | None, units: str) -> str:
+    diffs = [abs(r.difference) for r in rows if not isinstance(r.difference, Unavailable)]
+    if not diffs:
+        return "no chief ray reaches the image: the paraxial image height cannot be judged"
+    worst = max(diffs)
+    if tolerance is not None:
+        limit, what = tolerance, f"the stated tolerance {_fmt(tolerance, units)}"
+    elif isinstance(airy, Unavailable):
+        return f"largest real-minus-paraxial image height {_fmt(worst, units)}"
+    else:
+        limit, what = airy, f"the Airy radius 0.61 λ/NA = {_fmt(airy, units)}"
+    if worst <= limit:
+        return f"paraxial image height holds: within {what} (largest {_fmt(worst, units)})"
+    return (f"paraxial image height does not hold: real and paraxial heights differ by up to "
+            f"{_fmt(worst, units)}, more than {what}")

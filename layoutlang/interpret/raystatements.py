@@ -1,0 +1,182 @@
+"""The interpreter's part for exact rays and aberrations (statements of grammar/rays.lark).
+
+Mixed into the interpreter's class: each `statement_<Class>` says in its docstring the syntax it
+handles. Fields written with a unit (an angle for an object at infinity, a height for a near
+object) become fractions of the full field once the object is known, at the end of the script.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from ..engines.raysettings import RaySettings
+from ..errors import LayoutUnitError, LayoutValueError
+from ..quantities import FIELD_DEFAULTS, PERCENT, RAY_QUANTITIES, lookup
+from ..syntax import tree as t
+
+__all__ = ["RayStatements"]
+
+
+class RayStatements:
+    """`sample`, `focus tolerance`, `report exact rays | seidel sums`, ray `expect` forms."""
+
+    def _rays(self) -> dict:
+        state = self.__dict__.get("_ray_state")
+        if state is None:
+            state = self.__dict__["_ray_state"] = {
+                "pupils": None, "fields": None, "grid": None, "tolerance": None, "reports": [],
+                "system": None}
+        return state
+
+    def statement_Sample(self, node: t.Sample) -> None:
+        """sample pupils P, P, ... | sample fields F, F, ... | sample grid N"""
+        state = self._rays()
+        if state[node.what] is not None:
+            raise LayoutValueError(f"the sampled {node.what} are given twice", self.span(node))
+        if node.what == "pupils":
+            values = []
+            for expr in node.values:
+                value = self.number(expr, "a pupil fraction")
+                if not 0 < value <= 1:
+                    raise LayoutValueError("a pupil fraction must be more than 0 and at most 1",
+                                           self.span(expr), expected="e.g. 1, 0.7, 0.5")
+                values.append(float(value))
+            state["pupils"] = tuple(values)
+        elif node.what == "grid":
+            value = self.number(node.values[0], "the pupil grid size")
+            if value != int(value) or not 3 <= value <= 201:
+                raise LayoutValueError("the pupil grid takes a whole number of points across, "
+                                       "from 3 to 201", self.span(node.values[0]))
+            state["grid"] = int(value)
+        else:
+            # converted once the object is known, in this statement's file
+            state["fields"] = (tuple(node.values), (self.file, self.lines))
+
+    def statement_FocusTolerance(self, node: t.FocusTolerance) -> None:
+        """focus tolerance D"""
+        state = self._rays()
+        if state["tolerance"] is not None:
+            raise LayoutValueError("the focus tolerance is given twice", self.span(node))
+        value = self.length(node.value, "a focus tolerance")
+        state["tolerance"] = float(self.positive(value, node.value, "a focus tolerance"))
+
+    def statement_ReportRays(self, node: t.ReportRays) -> None:
+        """report exact rays | report seidel sums"""
+        reports = self._rays()["reports"]
+        if node.what not in reports:
+            reports.append(node.what)
+
+    def statement_ExpectRays(self, node: t.ExpectRays) -> None:
+        """expect QUANTITY at field F < V (and = ± T, >, ...) | expect QUANTITY < V depth of focus"""
+        self.expect_nodes.append((node, (self.file, self.lines)))
+
+    # --- at the end of the script -------------------------------------------------------------
+    def ray_settings(self, system) -> RaySettings:
+        """The sampling the script chose (defaults elsewhere); keeps the system for fields."""
+        state = self._rays()
+        state["system"] = system
+        default = RaySettings()
+        fields = default.fields
+        if state["fields"] is not None:
+            nodes, context = state["fields"]
+            saved, (self.file, self.lines) = (self.file, self.lines), context
+            fields = tuple(self.field_fraction(expr) for expr in nodes)
+            self.file, self.lines = saved
+        return RaySettings(state["pupils"] or default.pupils, fields,
+                           state["grid"] or default.grid, state["tolerance"])
+
+    def ray_reports(self) -> tuple[str, ...]:
+        return tuple(self._rays()["reports"])
+
+    def field_fraction(self, expr: t.Expr) -> float:
+        """A field as a fraction of the full field: a plain number is the fraction itself; an
+        angle or a height with its unit is divided by the object's field angle or height."""
+        system = self._rays()["system"]
+        measure = self.value(expr)
+        obj = system.object
+        if measure.bare or measure.dimension == (0, 0):
+            value = float(measure.value)
+        elif measure.dimension == (0, 1):
+            if not obj.at_infinity or obj.field_angle == 0:
+                raise LayoutUnitError("a field given as an angle needs an object at infinity "
+                                      "with a field angle", self.span(expr),
+                                      expected="a fraction of the full field such as 0.7")
+            value = float(measure.value) / float(obj.field_angle)
+        elif measure.dimension == (1, 0):
+            if obj.at_infinity or obj.height == 0:
+                raise LayoutUnitError("a field given as a height needs an object at a finite "
+                                      "distance with a height", self.span(expr),
+                                      expected="a fraction of the full field such as 0.7")
+            value = float(measure.value) / float(obj.height)
+        else:
+            raise LayoutUnitError(f"a field is a fraction, an angle or a height, not "
+                                  f"{measure.describe()}", self.span(expr))
+        if not math.isfinite(value) or abs(value) > 1 + 1e-12:
+            raise LayoutValueError("a field must lie within the full field (fraction -1 to 1)",
+                                   self.span(expr))
+        return value
+
+    def ray_expectation(self, node: Any):
+        """An `Expectation` for a ray or Seidel quantity (core `expect` or `ExpectRays`)."""
+        from .interpreter import Expectation
+
+        info = self.quantity(node.quantity)
+        if info.name not in RAY_QUANTITIES:
+            raise LayoutValueError(
+                f"{info.name} is a first-order quantity: it has no field and no depth of focus",
+                self.span(node.quantity), hint=f"write 'expect {info.name} {node.op} ...'")
+        field = getattr(node, "field", None)
+        scale = getattr(node, "scale", "")
+        fraction = None
+        if info.name in FIELD_DEFAULTS:
+            fraction = FIELD_DEFAULTS[info.name] if field is None else self.field_fraction(field)
+        elif field is not None:
+            raise LayoutValueError(f"{info.name} does not depend on the field",
+                                   self.span(field),
+                                   hint="fields go with spot radii, real image height and "
+                                        "distortion")
+        if scale and info.name != "marginal focus shift":
+            raise LayoutValueError("only the marginal focus shift is compared with the depth "
+                                   "of focus", self.span(node.quantity))
+        if scale:
+            kind = "number"
+            convert = lambda e: self.number(e, "a fraction of the depth of focus")  # noqa: E731
+        elif info.kind == PERCENT:
+            kind = PERCENT
+            convert = self._percent
+        else:
+            kind = info.kind
+            convert = lambda e: self.length(e, "the expected value")  # noqa: E731
+        expected = convert(node.value)
+        tolerance, relative = None, False
+        if node.tolerance is not None:
+            if node.op != "=":
+                raise LayoutValueError("a tolerance only goes with '='", self.span(node.tolerance))
+            measure = self.value(node.tolerance.value)
+            if measure.relative and kind != PERCENT:
+                tolerance, relative = measure.value, True
+            else:
+                tolerance = convert(node.tolerance.value)
+            self.positive(tolerance, node.tolerance.value, "a tolerance", allow_zero=True)
+        elif node.op == "=":
+            raise LayoutValueError("an '=' expectation needs a tolerance", self.span(node),
+                                   expected="'± 0.05' or 'within 1%' after the value")
+        span = self.span(node)
+        return Expectation(info.name, kind, node.op, expected, tolerance, relative, span,
+                           span.line_text.strip(), field=fraction, scale=scale)
+
+    def _percent(self, expr: t.Expr) -> float:
+        """A distortion limit: '1 %' or a plain 1 (read as percent), kept as a fraction."""
+        measure = self.value(expr)
+        if measure.relative:
+            return float(measure.value)
+        if measure.bare or measure.dimension == (0, 0):
+            return float(measure.value) / 100.0
+        raise LayoutUnitError(f"a distortion is in percent, not {measure.describe()}",
+                              self.span(expr), expected="a percentage such as 1 %")
+
+
+def is_ray_quantity(words: str) -> bool:
+    info = lookup(words)
+    return info is not None and info.name in RAY_QUANTITIES

@@ -1,0 +1,174 @@
+"""Text sections for exact rays, aberrations and Seidel sums, printed when a script asks.
+
+Same habits as `text.py`: aligned columns, a unit on every number, every lost ray counted and
+named by surface, and the reason in words wherever a value does not exist (never NaN).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..engines.firstorder import FirstOrder, Unavailable
+from ..interpret.interpreter import Program
+from ..quantities import QUANTITIES, RAY_QUANTITIES, FIELD_DEFAULTS
+from ..testing import format_number
+
+__all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines"]
+
+
+def _table(rows: list[list[str]], indent: str = "    ") -> list[str]:
+    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
+    return [indent + "  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip()
+            for row in rows]
+
+
+def _len(value, units: str) -> str:
+    if isinstance(value, Unavailable):
+        return str(value)
+    return f"{format_number(value, 5)} {units}"
+
+
+def _pct(value) -> str:
+    if isinstance(value, Unavailable):
+        return str(value)
+    return f"{format_number(value * 100, 4)} %"
+
+
+def _field_words(system, fraction: float) -> str:
+    obj = system.object
+    if obj.at_infinity:
+        angle = math.degrees(fraction * float(obj.field_angle))
+        return f"{format_number(fraction, 4)} ({format_number(angle, 4)} deg)"
+    return f"{format_number(fraction, 4)} ({format_number(fraction * float(obj.height), 4)} " \
+           f"{system.units})"
+
+
+def _nm(system, wavelength: float) -> str:
+    from ..measure import LENGTH_UNITS
+
+    return f"{format_number(wavelength * LENGTH_UNITS[system.units] * 1e6, 5)} nm"
+
+
+def _has_ideal(system) -> bool:
+    return any(b.kind == "ideal" for b in system.boundaries)
+
+
+def exact_ray_lines(program: Program, results: FirstOrder) -> list[str]:
+    """The paraxial validity report and the ray aberrations."""
+    from ..engines.rayquantities import ray_quantities
+
+    system = program.system
+    units = system.units
+    a = ray_quantities(system, program.rays, results).analysis
+    lines = ["", "exact rays against the paraxial numbers"]
+    if a.unavailable is not None:
+        return lines + [f"  not traced: {a.unavailable}"]
+    na = a.numerical_aperture
+    lines.append(f"  wavelength {_nm(system, a.wavelength)} (primary); paraxial image-side "
+                 f"numerical aperture {format_number(na, 4)}; depth of focus λ/NA² "
+                 f"{_len(a.depth_of_focus, units)}")
+    lines.append("  rays are aimed at the real stop" + (
+        "; each ideal 'lens' acts as a perfect paraxial lens" if _has_ideal(system) else ""))
+    lines.append("  axial rays: where each crosses the axis after the last boundary")
+    rows = [["pupil", "real focus", "paraxial focus", "real - paraxial",
+             "height on the paraxial focal plane"]]
+    lost = []
+    for r in a.marginal:
+        rows.append([format_number(r.pupil, 4), _len(r.real_focus, units),
+                     _len(r.paraxial_focus, units), _len(r.longitudinal, units),
+                     _len(r.transverse, units)])
+        if r.lost:
+            lost.append(f"pupil {format_number(r.pupil, 4)}: {r.lost}")
+    lines += _table(rows) if a.marginal else ["    (no pupil sampled)"]
+    lines += [f"    lost: {words}" for words in lost]
+    lines.append(f"  verdict: {a.focus_verdict}")
+    lines.append("  chief rays: height on the image plane")
+    rows = [["field", "real height", "paraxial height", "real - paraxial", "distortion"]]
+    lost = []
+    for r in a.chief:
+        rows.append([_field_words(system, r.field), _len(r.real_height, units),
+                     _len(r.paraxial_height, units), _len(r.difference, units),
+                     _pct(r.distortion)])
+        if r.lost:
+            lost.append(f"field {format_number(r.field, 4)}: {r.lost}")
+    lines += _table(rows)
+    lines += [f"    lost: {words}" for words in lost]
+    lines.append(f"  verdict: {a.height_verdict}")
+    lines.append(f"  spots on the image plane: pupil grid {program.rays.grid} across, radii "
+                 f"about the centroid")
+    rows = [["field", "wavelength", "rays reaching", "rms radius", "largest radius"]]
+    lost = []
+    for r in a.spots:
+        rows.append([_field_words(system, r.field), _nm(system, r.wavelength),
+                     f"{r.used} of {r.rays}", _len(r.rms_radius, units),
+                     _len(r.max_radius, units)])
+        if r.lost:
+            lost.append(f"field {format_number(r.field, 4)}, {_nm(system, r.wavelength)}: "
+                        f"{r.lost}")
+    lines += _table(rows)
+    lines += [f"    lost: {words}" for words in lost]
+    lines.append(f"  best focus (least RMS spot, axial bundle): "
+                 f"{_len(a.best_focus_shift, units)} from the paraxial focus along the path")
+    return lines
+
+
+def seidel_lines(program: Program, results: FirstOrder) -> list[str]:
+    """Per-surface third-order contributions, totals, Petzval sum and radius."""
+    from ..engines.rayquantities import ray_quantities
+
+    system = program.system
+    units = system.units
+    sums = ray_quantities(system, program.rays, results).seidel
+    lines = ["", f"third-order (Seidel) sums at full aperture and field, in {units} "
+                 "(surface formulas of Welford 1986)"]
+    if isinstance(sums, Unavailable):
+        return lines + [f"  not computed: {sums}"]
+    names = ["spherical", "coma", "astigmatism", "field_curvature", "distortion",
+             "axial_colour", "lateral_colour"]
+    rows = [["boundary", "S I spherical", "S II coma", "S III astigmatism",
+             "S IV field curvature", "S V distortion", "C I axial colour",
+             "C II lateral colour"]]
+    for s in sums.surfaces:
+        rows.append([s.name] + [format_number(getattr(s, n), 4) for n in names])
+    rows.append(["total"] + [format_number(sums.total(n), 4) for n in names])
+    lines += _table(rows, "  ")
+    radius = sums.petzval_radius
+    where = "" if isinstance(radius, Unavailable) else (
+        "  (centre downstream)" if radius > 0 else "  (centre upstream)")
+    lines.append(f"  Petzval sum {format_number(sums.petzval_sum, 5)} per {units}; Petzval "
+                 f"radius {_len(radius, units)}{where}")
+    if len(system.wavelengths) < 2:
+        lines.append("  chromatic sums need two or more wavelengths; they are zero here")
+    if _has_ideal(system):
+        lines.append("  an ideal 'lens' images perfectly and contributes nothing")
+    return lines
+
+
+def requested_ray_lines(program: Program, results: FirstOrder, names: tuple[str, ...]
+                        ) -> list[str]:
+    """Rows for ray quantities named in a `report` statement."""
+    from ..engines.rayquantities import ray_quantities
+
+    system = program.system
+    units = system.units
+    rays = ray_quantities(system, program.rays, results)
+    rows = []
+    for name in names:
+        if name not in RAY_QUANTITIES:
+            continue
+        field = FIELD_DEFAULTS.get(name)
+        value = rays.value(name, field)
+        label = name if field is None else f"{name} at field {format_number(field, 4)}"
+        text = _pct(value) if QUANTITIES[name].kind == "percent" else _len(value, units)
+        rows.append([label, text])
+    return _table(rows, "  ") if rows else []
+
+
+def ray_sections(program: Program, results: FirstOrder) -> list[str]:
+    """Everything the script asked of the ray engine (nothing when it asked nothing)."""
+    lines: list[str] = []
+    if "exact rays" in program.ray_reports:
+        lines += exact_ray_lines(program, results)
+    if "seidel sums" in program.ray_reports:
+        lines += seidel_lines(program, results)
+    return lines
