@@ -23,6 +23,8 @@ from .validator import join_lines
 __all__ = ["LayoutCompleter", "next_terminals", "candidates"]
 
 _PARTIAL = re.compile(r"[A-Za-z_][A-Za-z0-9_-]*$")
+#: The words the UNIT terminal matches (grammar/layoutlang.lark), for completion after a number.
+_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "diopters")
 
 
 @cache
@@ -49,6 +51,8 @@ def candidates(text: str, names: Iterable[str] = ()) -> set[str]:
         word = literals.get(terminal)
         if word is not None and word[:1].isalpha():
             found.add(word)
+        elif terminal == "UNIT":
+            found.update(_UNIT_WORDS)
         elif terminal == "NAME":
             found.update(names)
             first = text.split()[:1]

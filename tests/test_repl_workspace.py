@@ -1,0 +1,194 @@
+"""Tests of the session's workspace: edits, undo/redo, expectations changing state, save."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from layoutlang.interpret.interpreter import load_file
+from layoutlang.repl.workspace import LeaveRequested, Workspace, write_atomically
+
+ROOT = Path(__file__).resolve().parent.parent
+
+# An invented two-surface relay, for these tests only.
+RELAY = """\
+layout "Test relay"
+units mm
+let focal_goal = 90
+medium crown index 1.517
+medium flint index 1.620
+object 250 before, height 4
+start in air
+surface front radius 52.9 into crown
+gap 5.2
+surface joint radius -38.1 into flint
+gap 2.0
+surface back radius -150.4 into air
+stop at front, diameter 18
+image at focus
+expect focal length = focal_goal ± 0.5
+expect f-number < 8
+"""
+
+
+@pytest.fixture
+def relay(tmp_path: Path) -> Workspace:
+    path = tmp_path / "relay.lay"
+    path.write_text(RELAY, encoding="utf-8")
+    return Workspace.open(path)
+
+
+def focal(workspace: Workspace) -> float:
+    return workspace.snapshot.results["focal length"]
+
+
+def test_opening_a_script_is_not_an_unsaved_edit(relay: Workspace) -> None:
+    assert relay.snapshot.complete and not relay.unsaved
+    assert [r.passed for r in relay.snapshot.checked] == [True, True]
+
+
+def test_an_edit_shows_old_and_new_values_with_units(relay: Workspace) -> None:
+    out = relay.run("change front radius to 50")
+    assert out.splitlines()[0] == "front is now radius 50"
+    line = next(x for x in out.splitlines() if x.strip().startswith("focal length"))
+    # the focal length printed before and after, both with their unit, and the difference
+    assert "90.0243 mm" in line and "→" in line and "85.6951 mm" in line and "(-4.32926 mm)" in line
+    assert relay.unsaved
+
+
+def test_undo_and_redo_walk_the_whole_session(relay: Workspace) -> None:
+    start = relay.snapshot.program.system
+    relay.run("change front radius to 50")
+    relay.run("change gap after front to 6")
+    middle = relay.snapshot.program.system
+    relay.run("rename front to entry")
+    assert relay.run("undo").startswith("undone")
+    assert relay.run("undo").startswith("undone")
+    relay.run("undo")
+    assert relay.snapshot.program.system == start
+    assert relay.run("undo") == "nothing to be undone"
+    relay.run("redo")
+    relay.run("redo")
+    assert relay.snapshot.program.system == middle
+    relay.run("change crown index to 1.52")  # a new edit forgets what could be redone
+    assert relay.run("redo") == "nothing to be redone"
+
+
+def test_expectations_are_re_evaluated_and_their_change_of_state_shown(relay: Workspace) -> None:
+    out = relay.run("change front radius to 40")
+    assert "now     FAILS (was holds): expect focal length = focal_goal ± 0.5" in out
+    out = relay.run("change focal_goal to 70")  # a constant the expectation uses
+    assert "no first-order quantity changed" in out
+    assert "now     holds (was FAILS): expect focal length = focal_goal ± 0.5" in out
+    out = relay.run("undo")
+    assert "now     FAILS (was holds)" in out
+    out = relay.run("expect image distance > 90")  # radius 40: the image is 93.6 mm away
+    assert "new     holds: expect image distance > 90" in out
+    out = relay.run("undo")
+    assert "no longer checked: expect image distance > 90" in out
+
+
+def test_an_error_keeps_every_earlier_edit(relay: Workspace) -> None:
+    relay.run("change front radius to 50")
+    before = relay.snapshot
+    for bad in ("change front radius to 0",          # the interpreter refuses it
+                "change nowhere radius to 5",        # no such surface
+                "surface x radius",                   # a syntax error
+                "change front radius to 5 deg",      # wrong unit
+                "remove front"):                     # the stop stands at front
+        out = relay.run(bad)
+        assert "error:" in out, bad
+        assert relay.snapshot is before
+    assert "caret" not in out
+    assert relay.run("undo").startswith("undone")  # the undo history is intact too
+
+
+def test_insert_and_remove_keep_neighbours_in_place(relay: Workspace) -> None:
+    length = relay.snapshot.results["axial length"]
+    relay.run("insert surface window flat into crown after front")
+    relay.run("insert gap 1 after front")
+    assert "window" in relay.show("table")
+    assert relay.snapshot.results["axial length"] == pytest.approx(length + 1)
+    out = relay.run("remove window")
+    assert "joined" in out
+    script = relay.show("script")
+    assert "gap 1 + 5.2" in script
+    assert relay.snapshot.results["axial length"] == pytest.approx(length + 1)
+
+
+def test_save_writes_a_canonical_script_that_loads_to_the_same_system(
+        relay: Workspace, tmp_path: Path) -> None:
+    relay.run("change front radius to 50")
+    relay.run("insert surface window flat into crown after front")
+    relay.run("rename joint to cemented")
+    relay.run("expect image distance > 100")
+    target = tmp_path / "saved.lay"
+    assert relay.run(f'save "{target}"').startswith("saved 18 statements")
+    assert not relay.unsaved
+    assert load_file(target).system == relay.snapshot.program.system
+    again = Workspace.open(target)
+    assert again.statements == relay.statements
+    # a bare save goes to the same file again
+    relay.run("change back radius to -140")
+    assert relay.run("save").endswith(str(target))
+    assert load_file(target).system == relay.snapshot.program.system
+
+
+def test_a_new_session_builds_a_layout_line_by_line(tmp_path: Path) -> None:
+    workspace = Workspace()
+    assert "not complete yet" in workspace.run("start in air")
+    workspace.run("medium glass index 1.5")
+    workspace.run("object 100 before")
+    assert "complete" in workspace.run("surface front radius 25 into glass")
+    assert "not complete yet" in workspace.run("gap 4")
+    out = workspace.run("surface back radius -25 into air")
+    assert "focal length" in out
+    assert "error" in workspace.run("save")  # no file yet: says how to name one
+    assert workspace.run(f'save "{tmp_path / "new.lay"}"').startswith("saved")
+
+
+def test_show_and_questions_do_not_change_the_layout(relay: Workspace) -> None:
+    before = relay.statements
+    assert relay.show("table").splitlines()[1].split()[:2] == ["#", "boundary"]
+    assert relay.show("script") == RELAY.rstrip("\n").replace("± 0.5", "± 0.5")
+    answer = relay.run("report focal length, back focal distance")
+    assert "focal length" in answer and "back focal distance" in answer
+    assert relay.statements == before and not relay.unsaved
+
+
+def test_leave_is_passed_to_the_session(relay: Workspace) -> None:
+    with pytest.raises(LeaveRequested):
+        relay.run("leave")
+
+
+def test_session_commands_are_refused_in_script_files(tmp_path: Path) -> None:
+    from layoutlang.errors import LayoutValueError
+
+    path = tmp_path / "bad.lay"
+    path.write_text("start in air\nsurface flat\nundo\n", encoding="utf-8")
+    with pytest.raises(LayoutValueError, match="only in the interactive session"):
+        load_file(path)
+
+
+def test_atomic_write_never_leaves_a_half_file(tmp_path: Path, monkeypatch) -> None:
+    import os
+
+    target = tmp_path / "keep.lay"
+    target.write_text("old\n", encoding="utf-8")
+
+    def broken_replace(src, dst):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(os, "replace", broken_replace)
+    from layoutlang.errors import LayoutFileError
+
+    with pytest.raises(LayoutFileError, match="cannot save"):
+        write_atomically(target, "new\n")
+    assert target.read_text(encoding="utf-8") == "old\n"
+    assert [p.name for p in tmp_path.iterdir()] == ["keep.lay"]  # no temporary file left
+
+
+def test_the_tour_example_opens_and_its_expectations_hold() -> None:
+    workspace = Workspace.open(ROOT / "examples" / "conveyor_camera.lay")
+    assert all(r.passed for r in workspace.snapshot.checked)
