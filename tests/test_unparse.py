@@ -16,7 +16,7 @@ FIXTURES = Path(__file__).parent / "fixtures"
 
 def _snippets() -> list[str]:
     found = []
-    for name in ("statements.txt", "session_commands.txt"):
+    for name in ("statements.txt", "unparse_extra.txt", "session_commands.txt"):
         for line in (FIXTURES / name).read_text(encoding="utf-8").splitlines():
             if line.strip() and not line.startswith("#"):
                 found.append(line.split("|", 1)[1].strip())

@@ -125,11 +125,8 @@ def _Wavelengths(node: t.Wavelengths) -> str:
 
 
 def _Expect(node: t.Expect) -> str:
-    text = f"expect {node.quantity.text} {node.op} {unparse_expr(node.value)}"
-    if node.tolerance is not None:
-        word = "±" if node.tolerance.kind == "±" else "within"
-        text += f" {word} {unparse_expr(node.tolerance.value)}"
-    return text
+    return (f"expect {node.quantity.text} {node.op} {unparse_expr(node.value)}"
+            + _tolerance(node.tolerance))
 
 
 def _Report(node: t.Report) -> str:
@@ -157,6 +154,103 @@ def _Remove(node: t.Remove) -> str:
     return f"remove gap {node.gap} {node.anchor.text}"
 
 
+def _tolerance(node: t.Tolerance | None) -> str:
+    if node is None:
+        return ""
+    word = "±" if node.kind == "±" else "within"
+    return f" {word} {unparse_expr(node.value)}"
+
+
+def _exprs(values) -> str:
+    return ", ".join(unparse_expr(v) for v in values)
+
+
+# exact rays (grammar/rays.lark)
+def _ExpectRays(node: t.ExpectRays) -> str:
+    text = f"expect {node.quantity.text}"
+    if node.field is not None:
+        text += f" at field {unparse_expr(node.field)}"
+    text += f" {node.op} {unparse_expr(node.value)}"
+    if node.scale:
+        return f"{text} {node.scale}"
+    return text + _tolerance(node.tolerance)
+
+
+# materials (grammar/materials.lark)
+def _pairs(pairs) -> str:
+    return ", ".join(f"({unparse_expr(a)}, {unparse_expr(b)})" for a, b in pairs)
+
+
+def _MediumModel(node: t.MediumModel) -> str:
+    head = f"medium {node.name.text}"
+    if node.kind == "model glass":
+        index, abbe = node.values
+        text = f"{head} index {unparse_expr(index)}, abbe number {unparse_expr(abbe)}"
+    elif node.kind == "glass code":
+        text = f"{head} glass code {node.code}"
+    elif node.kind == "sellmeier":
+        text = f"{head} sellmeier"
+        if node.constant is not None:
+            text += f" constant {unparse_expr(node.constant)}"
+        if node.squared:
+            text += " squared"
+        text += f" wavelengths {_pairs(node.pairs)}"
+    elif node.kind == "cauchy":
+        text = f"{head} cauchy {_exprs(node.values)}"
+    else:  # table
+        text = f"{head} table {_pairs(node.pairs)}"
+    if node.valid is not None:
+        low, high = node.valid
+        text += f", valid from {unparse_expr(low)} to {unparse_expr(high)}"
+    if node.relative_to is not None:
+        text += f", relative to {node.relative_to}"
+    return text
+
+
+def _wavelength_ref(ref: t.WavelengthRef) -> str:
+    return ref.name if ref.name is not None else unparse_expr(ref.number)
+
+
+def _qualifier(q: t.Qualifier) -> str:
+    refs = [_wavelength_ref(r) for r in q.wavelengths]
+    if q.kind == "of":
+        return f"of {q.medium.text}"
+    if q.kind == "at":
+        return f"at wavelength {refs[0]}"
+    if q.kind == "between":
+        return f"between {refs[0]} and {refs[1]}"
+    return f"across {refs[0]}, {refs[1]} and {refs[2]}"
+
+
+def _QualifiedExpect(node: t.QualifiedExpect) -> str:
+    qualifiers = " ".join(_qualifier(q) for q in node.qualifiers)
+    return (f"expect {node.quantity.text} {qualifiers} {node.op} {unparse_expr(node.value)}"
+            + _tolerance(node.tolerance))
+
+
+def _Achromat(node: t.Achromat) -> str:
+    text = f"achromat from {node.first.text} and {node.second.text}"
+    if node.focal_length is not None:
+        text += f", focal length {unparse_expr(node.focal_length)}"
+    return text
+
+
+# symbolic work (grammar/symbolic.lark)
+def _names(idents) -> str:
+    return ", ".join(i.text for i in idents)
+
+
+def _Symbols(node: t.Symbols) -> str:
+    text = "symbols " + " ".join(i.text for i in node.names)
+    return text if node.assumption is None else f"{text} {node.assumption}"
+
+
+def _Solve(node: t.Solve) -> str:
+    conditions = " and ".join(f"{c.quantity.text} = {unparse_expr(c.value)}"
+                              for c in node.conditions)
+    return f"solve {_names(node.unknowns)} so that {conditions}"
+
+
 _RULES: dict[str, Callable] = {
     "Title": lambda n: f'layout "{n.text}"',
     "Units": lambda n: f"units {n.unit.text}",
@@ -174,6 +268,29 @@ _RULES: dict[str, Callable] = {
     "Expect": _Expect,
     "Report": _Report,
     "Use": lambda n: f'use "{n.target}"' if n.is_file else f"use {n.target}",
+    "Hazard": lambda n: f"hazard {n.kind.text}",
+    # exact rays
+    "Sample": lambda n: f"sample {n.what} {_exprs(n.values)}",
+    "FocusTolerance": lambda n: f"focus tolerance {unparse_expr(n.value)}",
+    "ReportRays": lambda n: f"report {n.what}",
+    "ExpectRays": _ExpectRays,
+    # materials and wavelengths
+    "MediumModel": _MediumModel,
+    "Surroundings": lambda n: f"layout in {n.environment}",
+    "Achromat": _Achromat,
+    "QualifiedExpect": _QualifiedExpect,
+    "QualifiedReport": lambda n: f"report {n.quantity.text} "
+    + " ".join(_qualifier(q) for q in n.qualifiers),
+    # symbolic work
+    "Symbols": _Symbols,
+    "Nominal": lambda n: "nominal " + ", ".join(f"{v.name.text} = {unparse_expr(v.value)}"
+                                                for v in n.values),
+    "Derive": lambda n: "derive " + ", ".join(q.text for q in n.quantities),
+    "Solve": _Solve,
+    "Sensitivity": lambda n: "sensitivity of " + ", ".join(q.text for q in n.quantities)
+    + f" to {_names(n.symbols)}",
+    "ExpectSensitivity": lambda n: f"expect sensitivity of {n.quantity.text} to "
+    f"{n.symbol.text} {n.op} {unparse_expr(n.value)}" + _tolerance(n.tolerance),
     # commands of the interactive session
     "Change": _Change,
     "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",
