@@ -15,7 +15,7 @@ from layoutlang.repl.session import Session
 from layoutlang.repl.workspace import Workspace
 
 ROOT = Path(__file__).resolve().parent.parent
-CAMERA = ROOT / "examples" / "conveyor_camera.lay"
+CAMERA = ROOT / "examples" / "barcode_reader.lay"
 
 
 def run_session(keys: str, workspace: Workspace | None = None, **parts) -> tuple[str, int]:
@@ -33,7 +33,7 @@ def run_session(keys: str, workspace: Workspace | None = None, **parts) -> tuple
 def test_the_five_minute_tour(tmp_path: Path) -> None:
     """Open an example, change a radius, see the focus move, undo, add an expectation, save,
     and the saved script passes `layoutlang check`."""
-    copy = tmp_path / "camera.lay"
+    copy = tmp_path / "barcode_reader.lay"
     copy.write_text(CAMERA.read_text(encoding="utf-8"), encoding="utf-8")
     workspace = Workspace.open(copy)
     original = workspace.snapshot.program.system
@@ -52,6 +52,9 @@ def test_the_five_minute_tour(tmp_path: Path) -> None:
     assert f"saved {len(workspace.statements)} statements to {copy}" in out
     assert load_file(copy).system == original
     assert main(["check", str(copy)]) == 0
+    # the example is in canonical form: saving it unchanged writes it back byte for byte
+    assert copy.read_text(encoding="utf-8").replace(
+        "expect back focal distance > 20\n", "") == CAMERA.read_text(encoding="utf-8")
 
 
 def test_unfinished_statements_continue_on_the_next_line() -> None:

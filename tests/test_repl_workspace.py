@@ -192,3 +192,15 @@ def test_atomic_write_never_leaves_a_half_file(tmp_path: Path, monkeypatch) -> N
 def test_the_tour_example_opens_and_its_expectations_hold() -> None:
     workspace = Workspace.open(ROOT / "examples" / "conveyor_camera.lay")
     assert all(r.passed for r in workspace.snapshot.checked)
+
+
+def test_save_keeps_the_header_comments_and_says_when_others_are_dropped(tmp_path: Path) -> None:
+    path = tmp_path / "commented.lay"
+    path.write_text("# what this shows\n\n" + RELAY.replace("gap 5.2\n", "gap 5.2  # why\n"),
+                    encoding="utf-8")
+    workspace = Workspace.open(path)
+    out = workspace.run("save")
+    assert "only the comment lines at its top are kept" in out
+    text = path.read_text(encoding="utf-8")
+    assert text.startswith("# what this shows\n\nlayout") and "# why" not in text
+    assert load_file(path).system == workspace.snapshot.program.system

@@ -20,7 +20,7 @@ from .changes import describe_changes
 from .edits import Statements, apply_edit, scope_names
 from .evaluate import Snapshot, evaluate
 
-__all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP"]
+__all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP", "write_atomically", "split_header"]
 
 #: Statements that ask for output and are answered at once, not added to the layout.
 QUESTIONS = frozenset({"Report", "Derive", "Solve"})
@@ -50,13 +50,23 @@ class Workspace:
     """The layout being edited, with its undo and redo stacks and the file it belongs to."""
 
     def __init__(self, statements: Statements = (), path: Path | None = None,
-                 base: Path | None = None) -> None:
+                 base: Path | None = None, header: str = "",
+                 dropped_comments: bool = False) -> None:
         """Start from statements (e.g. a loaded script).
+
+        Args:
+            statements: the layout statements to start from.
+            path: the file `save` writes to.
+            base: the folder `use "file"` is resolved against (default: the file's folder).
+            header: comment lines written above the statements on save.
+            dropped_comments: whether the file had comments below its header (not kept).
 
         Raises:
             LayoutError: the statements do not make a valid (possibly unfinished) layout.
         """
         self.path = path
+        self.header = header
+        self.dropped_comments = dropped_comments
         self.base = base or (path.parent if path else None)
         self.snapshot: Snapshot = evaluate(tuple(statements), self.base)
         self.undo_stack: list[Snapshot] = []
@@ -72,7 +82,9 @@ class Workspace:
             text = path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as error:
             raise LayoutFileError(f"cannot read {path}: {error}") from None
-        return cls(parse(text, str(path)).statements, path)
+        header, rest = split_header(text)
+        return cls(parse(text, str(path)).statements, path, header=header,
+                   dropped_comments="#" in rest)
 
     # --- state ------------------------------------------------------------------------------
     @property
@@ -192,11 +204,28 @@ class Workspace:
         text = unparse(self.statements)
         if parse(text, str(path)).statements != self.statements:  # never write what won't load
             raise LayoutValueError("the layout cannot be written back as a script exactly")
-        write_atomically(path, text)
+        write_atomically(path, self.header + text)
         self.path, self.saved = path, self.statements
         if self.base is None:
             self.base = path.parent
-        return f"saved {len(self.statements)} statements to {path}"
+        said = f"saved {len(self.statements)} statements to {path}"
+        if self.dropped_comments:
+            said += ("\nnote: the script is written in canonical form; only the comment lines "
+                     "at its top are kept")
+        return said
+
+
+def split_header(text: str) -> tuple[str, str]:
+    """The comment (and blank) lines at the top of a script, and the rest."""
+    lines = text.splitlines(keepends=True)
+    count = 0
+    while count < len(lines) and (not lines[count].strip() or
+                                  lines[count].lstrip().startswith("#")):
+        count += 1
+    header = "".join(lines[:count])
+    if header and not header.endswith("\n"):
+        header += "\n"
+    return header, "".join(lines[count:])
 
 
 def write_atomically(path: Path, text: str) -> None:
