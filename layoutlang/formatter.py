@@ -8,7 +8,7 @@ and the text between tokens are taken from the source, so nothing the lexer igno
 Rules: one space between tokens, none before `,` and `)` or after `(`, none between a function
 name and its `(`, none after a sign (`-3`), none inside a hyphenated word (`f-number`), `%`
 against its number; numbers in a canonical spelling with the same decimal value; trailing
-comments aligned within a block of consecutive lines; the `=` of consecutive statements that
+comments on consecutive lines aligned; the `=` of consecutive statements that
 start with the same word aligned; at most one blank line in a row; one newline at the end.
 """
 
@@ -199,19 +199,26 @@ def _align_operators(lines: list[_Line | None]) -> list[_Line | None]:
 
 
 def _render(lines: list[_Line | None], head_comments: list[str]) -> str:
-    """Join lines, aligning trailing comments within each block of consecutive code lines."""
+    """Join lines, aligning the trailing comments of consecutive code lines."""
     out: list[str] = list(head_comments)
     block: list[_Line] = []
 
     def flush() -> None:
-        trailing = [len(line.code) for line in block if line.code and line.comment]
-        column = max(trailing) + 2 if trailing else 0
-        for line in block:
-            if line.code and line.comment:
+        # trailing comments on consecutive lines share a column; a line without one ends the run
+        i = 0
+        while i < len(block):
+            j = i
+            while j < len(block) and block[j].comment:
+                j += 1
+            if j == i:
+                out.append(block[i].code)
+                i += 1
+                continue
+            column = max(len(line.code) for line in block[i:j]) + 2
+            for line in block[i:j]:
                 pad = column - len(line.code) if column - len(line.code) <= _MAX_PAD else 2
                 out.append(line.code + " " * pad + line.comment)
-            else:
-                out.append(line.code or line.comment)
+            i = j
         block.clear()
 
     for line in lines:

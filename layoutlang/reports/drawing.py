@@ -229,7 +229,7 @@ def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = 
 
     import matplotlib
 
-    with matplotlib.rc_context({"svg.hashsalt": "layoutlang", "svg.fonttype": "path",
+    with matplotlib.rc_context({"svg.hashsalt": "layoutlang", "svg.fonttype": "none",
                                 "pdf.compression": 6, "font.family": "DejaVu Sans"}):
         fig = figure(system, hazards)
         buffer = io.BytesIO()

@@ -1,0 +1,110 @@
+"""Where the drawing puts things: vertices folded by mirrors, profiles, apertures, and rays that
+cross the axis where published imaging formulas put the image."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from layoutlang import loads
+from layoutlang.reports.cross_section import APERTURE_MARGIN, cross_section, sag
+
+
+def _section(text: str):
+    return cross_section(loads(text).system)
+
+
+def _axis_crossing(z, y) -> float:
+    """z where a polyline crosses y = 0 (the first sign change)."""
+    for (z0, y0), (z1, y1) in zip(zip(z, y), zip(z[1:], y[1:])):
+        if abs(y1) < 1e-12:
+            return z1
+        if y0 * y1 < 0:
+            return z0 + (z1 - z0) * y0 / (y0 - y1)
+    raise AssertionError("the ray never crosses the axis")
+
+
+def test_sag_matches_the_sphere() -> None:
+    # Sag of a sphere of radius R at height y: R - sqrt(R^2 - y^2) (common practice, geometry).
+    for radius in (52.9, -38.1, 10.0):
+        y = np.array([0.0, 1.0, 5.0, 9.0])
+        expected = radius - np.sign(radius) * np.sqrt(radius ** 2 - y ** 2)
+        assert np.allclose(sag(1 / radius, y), expected)
+    assert np.all(sag(0.0, np.array([1.0, 2.0])) == 0)
+
+
+def test_thin_lens_rays_meet_where_the_gaussian_formula_says() -> None:
+    # 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50, s = 150 → s' = 75,
+    # magnification -s'/s = -0.5, so the chief ray from height 2 ends at -1.
+    section = _section("""object 150 before, height 2
+start in air
+lens thin focal length 50
+stop at thin, diameter 10
+image at focus
+""")
+    marginal = [r for r in section.rays if r.role == "marginal"]
+    chief = [r for r in section.rays if r.role == "chief"]
+    assert len(marginal) == 2 and len(chief) == 1
+    assert section.object_plane == (-150.0, 2.0)
+    assert marginal[0].z[0] == pytest.approx(-150) and marginal[0].y[0] == pytest.approx(0)
+    assert marginal[0].z[-1] == pytest.approx(75) and marginal[0].y[-1] == pytest.approx(0, abs=1e-9)
+    assert chief[0].y[-1] == pytest.approx(-1.0)
+    assert section.image[0] == pytest.approx(75)
+    assert section.stop == (pytest.approx(0.0), pytest.approx(5.0))
+    # no clear diameter: the aperture comes from the ray heights, with a margin
+    assert section.profiles[0].semi_aperture == pytest.approx(5.0 * APERTURE_MARGIN)
+    assert not section.profiles[0].from_clear_diameter
+
+
+def test_concave_mirror_folds_the_path_back_to_its_focus() -> None:
+    # A spherical mirror focuses a distant object at f = |R|/2 in front of it (Hecht 2017,
+    # Optics, 5th ed., sec. 5.4.3): R = 200 → the focus lies 100 upstream of the vertex.
+    section = _section("""object at infinity, field angle 1 deg
+start in air
+mirror main radius -200, clear diameter 40
+stop at main, diameter 40
+image at focus
+""")
+    ray = next(r for r in section.rays if r.role == "marginal")
+    assert ray.z[0] < 0 and ray.z[-1] == pytest.approx(-100)  # arrives from -z, goes back
+    assert ray.y[0] == pytest.approx(ray.y[1])  # collimated before the mirror
+    assert _axis_crossing(ray.z[1:], ray.y[1:]) == pytest.approx(-100)
+    assert section.profiles[0].semi_aperture == 20  # from the clear diameter
+    assert section.profiles[0].from_clear_diameter
+    chief = next(r for r in section.rays if r.role == "chief")
+    # image height f·tan(field angle) in size (Hecht 2017, sec. 5.4.3; common practice)
+    assert abs(chief.y[-1]) == pytest.approx(100 * math.tan(math.radians(1)), rel=1e-9)
+
+
+def test_vertices_walk_back_after_a_mirror() -> None:
+    section = _section("""object at infinity
+start in air
+mirror first radius -800, clear diameter 200
+gap 300
+mirror second radius -266.667, clear diameter 70
+stop at first, diameter 200
+image at focus
+""")
+    assert [p.z for p in section.profiles] == [0.0, -300.0]
+    assert [p.sense_in for p in section.profiles] == [1, -1]
+
+
+def test_lens_elements_and_virtual_image() -> None:
+    # A plano-convex magnifier: object inside the focal length, a virtual image upstream.
+    section = _section("""medium acrylic index 1.4917
+object 35 before, height 2.5
+start in air
+surface board flat into acrylic, clear diameter 30
+gap 8
+surface eye radius -24.6 into air, clear diameter 30
+image at focus
+""")
+    assert len(section.elements) == 1 and section.elements[0].medium == "acrylic"
+    z, y = section.elements[0].outline(section.profiles)
+    assert z[0] == z[-1] and y[0] == y[-1]  # closed
+    assert any(r.virtual_z for r in section.rays)
+    ray = next(r for r in section.rays if r.virtual_z)
+    assert ray.virtual_z[-1] < 0  # the image is upstream of the lens
+    assert section.notes and "no stop" in section.notes[0]

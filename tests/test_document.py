@@ -1,0 +1,88 @@
+"""Design reports: Markdown, HTML and LaTeX say the same things (layout, first-order values,
+expectations with status, cautions) and embed or reference the drawing."""
+
+from __future__ import annotations
+
+from html.parser import HTMLParser
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("matplotlib")
+
+from layoutlang.reports.document import render_document, tex_escape  # noqa: E402
+
+# One thin lens, 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50, s = 150
+# → s' = 75 and magnification -0.5. The third expectation is deliberately wrong.
+SCRIPT = """layout "Relay lens, 50 mm"
+hazard laser
+object 150 before, height 2
+start in air
+lens relay focal length 50
+stop at relay, diameter 10
+image at focus
+expect image distance = 75 ± 0.01
+expect magnification = -0.5 within 0.1%
+expect f-number > 20
+"""
+
+
+@pytest.fixture()
+def script(tmp_path: Path) -> Path:
+    path = tmp_path / "relay.lay"
+    path.write_text(SCRIPT, encoding="utf-8")
+    return path
+
+
+def test_markdown_with_drawing_beside_it(script: Path, tmp_path: Path) -> None:
+    out = tmp_path / "report.md"
+    document = render_document(str(script), "md", str(out))
+    text = document.text
+    assert not document.all_hold  # f-number > 20 fails
+    assert text.startswith("# Relay lens, 50 mm\n")
+    assert "![cross-section of Relay lens, 50 mm](report-drawing.svg)" in text
+    assert (tmp_path / "report-drawing.svg").read_bytes().lstrip().startswith(b"<?xml")
+    assert "| image distance | 75 mm  (real image, downstream) |" in text
+    assert "| holds | 8 | expect image distance = 75 ± 0.01 |" in text
+    assert "| FAILS | 10 | expect f-number > 20 |" in text
+    assert "CAUTION: this layout focuses or relays laser light" in text
+    assert render_document(str(script), "md", str(out)).text == text  # deterministic
+
+
+def test_markdown_to_stdout_embeds_the_drawing(script: Path) -> None:
+    text = render_document(str(script), "md").text
+    assert "](data:image/svg+xml;base64," in text
+
+
+class _Collect(HTMLParser):
+    def __init__(self) -> None:
+        super().__init__()
+        self.tags: list[str] = []
+        self.text: list[str] = []
+
+    def handle_starttag(self, tag, attrs) -> None:
+        self.tags.append(tag)
+
+    def handle_data(self, data) -> None:
+        self.text.append(data)
+
+
+def test_html_is_self_contained(script: Path) -> None:
+    text = render_document(str(script), "html").text
+    parsed = _Collect()
+    parsed.feed(text)
+    assert {"html", "table", "svg", "h2"} <= set(parsed.tags)
+    words = " ".join(parsed.text)
+    assert "First-order properties" in words and "FAILS" in words and "CAUTION" in words
+    assert "<?xml" not in text  # the SVG is inline, without its own prolog
+
+
+def test_latex_document_and_escaping(script: Path, tmp_path: Path) -> None:
+    out = tmp_path / "report.tex"
+    text = render_document(str(script), "latex", str(out)).text
+    assert text.startswith(r"\documentclass{article}") and text.rstrip().endswith(r"\end{document}")
+    assert r"\includegraphics[width=\linewidth]{report-drawing.pdf}" in text
+    assert (tmp_path / "report-drawing.pdf").read_bytes().startswith(b"%PDF")
+    assert r"75 $\pm$ 0.01" in text
+    assert text.count(r"\begin{longtable}") == text.count(r"\end{longtable}") == 3
+    assert tex_escape("a_b 50% #1 & {x}") == r"a\_b 50\% \#1 \& \{x\}"

@@ -1,0 +1,42 @@
+"""Notebook display: a Program shows its report as HTML, evaluate() results a table with units
+(HTML) and aligned equations (LaTeX), and they still index by quantity name."""
+
+from __future__ import annotations
+
+import pytest
+
+import layoutlang
+from layoutlang.engines.firstorder import FirstOrder
+
+# f = 50, s = 150 → s' = 75 (Hecht 2017, Optics, 5th ed., eq. 5.17).
+SCRIPT = """layout "Relay"
+object 150 before, height 2
+start in air
+lens relay focal length 50
+stop at relay, diameter 10
+image at focus
+expect image distance = 75 ± 0.01
+"""
+
+
+def test_first_order_results_display_with_units() -> None:
+    results = layoutlang.evaluate(layoutlang.loads(SCRIPT))
+    assert isinstance(results, FirstOrder)
+    assert results["image distance"] == pytest.approx(75)
+    html = results._repr_html_()
+    assert "<td>image distance</td><td>75 mm  (real image, downstream)</td>" in html
+    latex = results._repr_latex_()
+    assert latex.startswith(r"$\begin{aligned}") and r"\text{image distance} &= 75\ \mathrm{mm}" in latex
+
+
+def test_program_shows_its_report() -> None:
+    pytest.importorskip("matplotlib")
+    html = layoutlang.loads(SCRIPT)._repr_html_()
+    assert "<h1>Relay</h1>" in html and "<svg" in html and "holds" in html
+
+
+def test_api_format_and_report(tmp_path) -> None:
+    assert layoutlang.format_script("gap  5") == "gap 5\n"
+    path = tmp_path / "relay.lay"
+    path.write_text(SCRIPT, encoding="utf-8")
+    assert layoutlang.report(path, "md", tmp_path / "r.md").startswith("# Relay")
