@@ -1,0 +1,146 @@
+"""`derive`: closed forms of first-order quantities, the conjugate equation, and their sizes.
+
+Each quantity comes out of `SymbolicLayout` as a ring ratio, is reduced once (`canonical`), and
+is turned into a sympy expression only if it is small enough to be read; past `PRINT_TERMS`
+terms the derivation says so and offers the structured form (named intermediates) instead, and
+past `WORK_TERMS` it stops expanding at all, so no layout makes `derive` hang.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+from ..engines.firstorder import Unavailable
+from ..quantities import lookup
+from .algebra import Ratio, TooLarge
+from .layout import SymbolicLayout
+from .program import SymbolicPart
+from .structured import MATRIX_QUANTITIES, Structured, structured_form, with_exact_values
+
+__all__ = ["Derived", "derive", "layout_for", "PRINT_TERMS", "WORK_TERMS", "IMAGE_SYMBOL",
+           "conjugate_equation"]
+
+#: Past this many terms an expanded closed form is not printed (the structured form is).
+PRINT_TERMS = 4000
+#: Past this many terms in any intermediate polynomial the expansion stops.
+WORK_TERMS = 60000
+
+_LAYOUTS: dict[int, tuple[SymbolicPart, SymbolicLayout]] = {}
+
+
+def layout_for(part: SymbolicPart) -> SymbolicLayout:
+    """One SymbolicLayout per symbolic program (its matrix is shared by every request)."""
+    cached = _LAYOUTS.get(id(part))
+    if cached is None or cached[0] is not part:
+        cached = (part, SymbolicLayout(part.system, list(part.symbols), part.nominal,
+                                       limit=WORK_TERMS))
+        _LAYOUTS[id(part)] = cached
+    return cached[1]
+
+
+def IMAGE_SYMBOL() -> Any:  # noqa: N802 — a constant that needs sympy, made on demand
+    import sympy as sp
+
+    return sp.Symbol("s'")
+
+
+@dataclass
+class Derived:
+    """One derived quantity, ready for every output format."""
+
+    quantity: str
+    kind: str
+    expr: Any = None  # the sympy closed form, when small enough to print
+    ratio: Ratio | None = None
+    unavailable: str | None = None
+    terms: int = 0
+    reduced: bool = True  # numerator and denominator proven coprime
+    too_large: str | None = None
+    structured: Structured | None = None
+    nominal_value: float | None = None
+    equation: Any = None  # a sympy Eq (conjugate equation)
+    notes: list[str] = field(default_factory=list)
+
+
+def _nominal_value(layout: SymbolicLayout, ratio: Ratio) -> float | None:
+    point = layout.nominal_point()
+    if point is None:
+        return None
+    try:
+        return float(ratio.evaluate(point))
+    except ZeroDivisionError:
+        return None
+
+
+def _structured(part: SymbolicPart, name: str) -> Structured | None:
+    if name not in MATRIX_QUANTITIES:
+        return None
+    return structured_form(with_exact_values(part.system), name)
+
+
+def derive(part: SymbolicPart, name: str, print_terms: int = PRINT_TERMS) -> Derived:
+    """The closed form of one quantity (a name of `layout.DERIVABLE`, or 'conjugate
+    equation' / 'lensmaker equation')."""
+    if name in ("conjugate equation", "lensmaker equation"):
+        return conjugate_equation(part, name)
+    kind = lookup(name).kind
+    layout = layout_for(part)
+    result = Derived(name, kind)
+    try:
+        value = layout.quantity(name)
+    except TooLarge as error:
+        result.too_large = (f"the expanded form has more than {WORK_TERMS} terms "
+                            f"(stopped at {error.terms}); shown with named intermediates instead")
+        result.structured = _structured(part, name)
+        return result
+    if isinstance(value, Unavailable):
+        result.unavailable = value.reason
+        return result
+    reduced, proven = value.canonical()
+    result.ratio, result.reduced, result.terms = reduced, proven, reduced.terms()
+    result.nominal_value = _nominal_value(layout, reduced)
+    result.notes = list(layout.notes)
+    if result.terms > print_terms:
+        result.too_large = (f"the expanded form has {result.terms} terms, too many to read; "
+                            "shown with named intermediates instead")
+        result.structured = _structured(part, name)
+        return result
+    result.expr = reduced.to_expr()
+    return result
+
+
+def conjugate_equation(part: SymbolicPart, name: str = "conjugate equation") -> Derived:
+    """n0/(a + p) + nk/(s' - p') = Φ: object and image distances measured from the principal
+    points (p after the first vertex, p' after the last); p = p' = 0 gives the one-boundary,
+    thin-lens and mirror forms."""
+    import sympy as sp
+
+    layout = layout_for(part)
+    result = Derived(name, "equation")
+    obj = part.system.object
+    if obj.distance is None:
+        result.unavailable = "none: the object is at infinity (see back focal distance)"
+        return result
+    parts = {}
+    for quantity in ("power", "front principal point", "back principal point"):
+        derived = derive(part, quantity)
+        if derived.unavailable or derived.expr is None:
+            result.unavailable = derived.unavailable or derived.too_large
+            return result
+        parts[quantity] = derived.expr
+    indices = part.system.indices()
+    n0, nk = (sp.nsimplify(n) if isinstance(n, float) else n for n in (indices[0], indices[-1]))
+    a = obj.distance
+    image = IMAGE_SYMBOL()
+    front, back = parts["front principal point"], parts["back principal point"]
+    left = sp.Add(n0 / (a + front), nk / (image - back), evaluate=False)
+    power = parts["power"]
+    if name == "lensmaker equation":
+        power = sp.factor(power)
+    result.equation = sp.Eq(left, power, evaluate=False)
+    result.expr = result.equation
+    result.notes = [] if front == 0 and back == 0 else [
+        "distances from the principal points: object a + p before the front principal point, "
+        "image s' - p' after the back principal point"]
+    return result
