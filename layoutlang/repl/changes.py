@@ -52,7 +52,8 @@ def _quantity_lines(before: Snapshot, after: Snapshot) -> list[str]:
         return ["  no first-order quantity changed"]
     width = max(len(r[0]) for r in rows)
     left = max(len(r[1]) for r in rows)
-    return [f"  {name.ljust(width)}  {old.ljust(left)}  →  {new}{delta}".rstrip()
+    right = max(len(r[2]) for r in rows)
+    return [f"  {name.ljust(width)}  {old.ljust(left)}  →  {new.ljust(right)}{delta}".rstrip()
             for name, old, new, delta in rows]
 
 
