@@ -204,3 +204,10 @@ def test_save_keeps_the_header_comments_and_says_when_others_are_dropped(tmp_pat
     text = path.read_text(encoding="utf-8")
     assert text.startswith("# what this shows\n\nlayout") and "# why" not in text
     assert load_file(path).system == workspace.snapshot.program.system
+
+
+def test_reports_of_other_features_are_answered_and_not_kept(relay: Workspace) -> None:
+    before = relay.statements
+    answer = relay.run("report seidel sums")
+    assert "Seidel" in answer and "total" in answer
+    assert relay.statements == before

@@ -23,7 +23,7 @@ from .evaluate import Snapshot, evaluate
 __all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP", "write_atomically", "split_header"]
 
 #: Statements that ask for output and are answered at once, not added to the layout.
-QUESTIONS = frozenset({"Report", "Derive", "Solve"})
+QUESTIONS = frozenset({"Report", "QualifiedReport", "ReportRays", "Derive", "Solve", "Sensitivity"})
 
 HELP = """\
 Type any statement of the language; it is added to the layout. A statement that is not
