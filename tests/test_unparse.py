@@ -88,3 +88,30 @@ def test_a_class_without_a_rule_is_a_clear_programming_error() -> None:
 
     with pytest.raises(UnparseError, match="Unknown"):
         unparse_statement(Unknown())
+
+
+# Random expression trees: whatever the nesting, the written text parses back to the same tree.
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_leaves = st.one_of(
+    st.builds(t.Number, st.sampled_from(["0", "1.5", "2", ".5", "1e3", "7.25"]),
+              st.sampled_from([None, "mm", "deg"])),
+    st.builds(t.Name, st.sampled_from(["a", "b", "focal_goal", "pi"])),
+)
+_expressions = st.recursive(
+    _leaves,
+    lambda inner: st.one_of(
+        st.builds(t.Binary, st.sampled_from(["+", "-", "*", "/", "^"]), inner, inner),
+        st.builds(t.Negate, inner),
+        st.builds(t.Call, st.sampled_from(["sqrt", "atan"]),
+                  st.lists(inner, min_size=1, max_size=2).map(tuple)),
+    ),
+    max_leaves=12,
+)
+
+
+@settings(max_examples=300, deadline=None)
+@given(_expressions)
+def test_any_expression_tree_round_trips(expr: t.Expr) -> None:
+    assert parse(f"let x = {unparse_expr(expr)}").statements[0].value == expr
