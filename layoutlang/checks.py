@@ -46,7 +46,13 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
     for expectation in program.expectations:
         kind = expectation.kind
         label = expectation.quantity
-        if expectation.quantity in RAY_QUANTITIES:  # exact rays or Seidel sums, traced once
+        request = getattr(expectation, "request", None)
+        if request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
+            from .engines.chromatic import evaluate
+
+            value = evaluate(request, program.system, results)
+            label = request.describe()
+        elif expectation.quantity in RAY_QUANTITIES:  # exact rays or Seidel sums, traced once
             from .engines.rayquantities import ray_quantities
 
             rays = ray_quantities(program.system, program.rays, results)

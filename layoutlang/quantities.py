@@ -89,6 +89,24 @@ RAY_QUANTITIES = frozenset(name for name, _, _ in _RAY_ROWS)
 QUANTITIES: dict[str, QuantityInfo] = {name: QuantityInfo(name, kind, meaning)
                                        for name, kind, meaning in _ROWS + _RAY_ROWS}
 
+#: Chromatic quantities (engines/chromatic.py), taken with qualifiers: `of MEDIUM`,
+#: `at wavelength W`, `between W and W`, `across W, W and W`. Not in the first-order report.
+_COLOUR_ROWS = [
+    ("refractive index", NUMBER, "index of a medium at a wavelength (default the primary)"),
+    ("abbe number", NUMBER, "(n2 - 1)/(n1 - n3) of a medium across three wavelengths "
+                            "(default F, d, C: the Abbe number vd; 'at e' uses F', e, C')"),
+    ("relative partial dispersion", NUMBER, "(nx - ny)/(nF - nC) of a medium between x and y "
+                                            "(default g and F)"),
+    ("axial colour", LENGTH, "image distance at the first wavelength minus at the second "
+                             "(default: shortest minus longest)"),
+    ("lateral colour", LENGTH, "chief ray height on the image plane at the first wavelength "
+                               "minus at the second (default: shortest minus longest)"),
+    ("secondary spectrum", LENGTH, "mean image distance of the outer two of three wavelengths "
+                                   "minus that of the middle one (default: shortest, primary, "
+                                   "longest)"),
+]
+QUANTITIES.update({name: QuantityInfo(name, kind, meaning) for name, kind, meaning in _COLOUR_ROWS})
+
 #: Other words people use for the same quantity.
 ALIASES = {
     "efl": "effective focal length",
@@ -106,6 +124,19 @@ ALIASES = {
     "axial color sum": "axial colour sum",
     "lateral color sum": "lateral colour sum",
 }
+
+ALIASES.update({
+    "index": "refractive index",
+    "axial color": "axial colour",
+    "longitudinal colour": "axial colour",
+    "longitudinal color": "axial colour",
+    "longitudinal chromatic aberration": "axial colour",
+    "lateral color": "lateral colour",
+    "transverse colour": "lateral colour",
+    "transverse color": "lateral colour",
+    "transverse chromatic aberration": "lateral colour",
+    "partial dispersion": "relative partial dispersion",
+})
 
 #: The order of the first-order report.
 REPORT_ORDER = [name for name, _, _ in _ROWS]

@@ -26,10 +26,27 @@ REFRACT, MIRROR, IDEAL = "refract", "mirror", "ideal"
 
 @dataclass(frozen=True)
 class Medium:
-    """A named medium with a constant refractive index."""
+    """A named medium.
+
+    Attributes:
+        name: the script's name for it.
+        index: the refractive index at the primary wavelength (what the engines use).
+        model: a dispersion model (`layoutlang.materials.dispersion`) giving the index at any
+            wavelength, or None for a constant index.
+    """
 
     name: str
     index: Number
+    model: Any = None
+
+    def index_at(self, wavelength_um: Number, environment: str = "standard air") -> Number:
+        """The index at wavelengths in micrometres (a float or a numpy array), relative to
+        the layout's surroundings; a medium without a model has the same index everywhere."""
+        if self.model is None:
+            return self.index
+        from .materials.environment import relative_index
+
+        return relative_index(self.model, wavelength_um, environment)
 
 
 @dataclass(frozen=True)
@@ -108,6 +125,7 @@ class System:
     wavelengths: tuple[Wavelength, ...] = ()
     title: str = ""
     units: str = "mm"
+    environment: str = "standard air"  # or "vacuum": what indices and wavelengths are relative to
 
     def medium(self, name: str) -> Medium:
         for medium in self.media:
@@ -122,9 +140,35 @@ class System:
             names.append(boundary.medium_after)
         return names
 
-    def indices(self) -> list[Number]:
-        """Refractive index (positive, physical) of each space, object space first."""
-        return [self.medium(name).index for name in self.space_media()]
+    def indices(self, wavelength: Number | None = None) -> list[Number]:
+        """Refractive index (positive, physical) of each space, object space first.
+
+        Args:
+            wavelength: None for the primary wavelength; else a wavelength in the layout's
+                length unit, or a numpy array of them (each index is then an array, or a plain
+                number for a medium without dispersion, which broadcasts).
+        """
+        if wavelength is None:
+            return [self.medium(name).index for name in self.space_media()]
+        wavelength_um = self.to_micrometres(wavelength)
+        return [self.medium(name).index_at(wavelength_um, self.environment)
+                for name in self.space_media()]
+
+    def to_micrometres(self, length: Number) -> Number:
+        """A length in the layout's unit, in micrometres (wavelengths for dispersion models)."""
+        from .measure import LENGTH_UNITS
+
+        return length * (LENGTH_UNITS[self.units] * 1000.0)
+
+    def at_wavelength(self, wavelength: Number) -> System:
+        """The same layout with every medium's index taken at `wavelength` (layout units; a
+        numpy array gives array indices, which the paraxial engine traces unchanged)."""
+        from dataclasses import replace
+
+        wavelength_um = self.to_micrometres(wavelength)
+        media = tuple(replace(m, index=m.index_at(wavelength_um, self.environment))
+                      if m.model is not None else m for m in self.media)
+        return replace(self, media=media)
 
     def directions(self) -> list[int]:
         """+1 or -1 for each space: the sense of travel along z after each mirror."""

@@ -23,6 +23,7 @@ from ..system import IDEAL, MIRROR, REFRACT, Boundary, ImageSpec, Medium, Object
 from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .raystatements import RayStatements, is_ray_quantity
+from .materialstatements import MaterialStatements
 from ..engines.raysettings import RaySettings
 
 __all__ = ["Expectation", "Program", "interpret", "load_file", "PREDEFINED_MEDIA"]
@@ -44,6 +45,7 @@ class Expectation:
     span: Span
     text: str  # the statement as written, for reports
     field: float | None = None  # ray quantities: the field fraction it is taken at
+    request: Any = None  # colour quantities and `at wavelength`: engines.chromatic.Request
     scale: str = ""  # 'depth of focus' when the value is in depths of focus
 
 
@@ -59,6 +61,8 @@ class Program:
     names: dict[str, Measure] = field(default_factory=dict, compare=False)
     rays: RaySettings = RaySettings()  # what `report exact rays` samples (raystatements.py)
     ray_reports: tuple[str, ...] = ()  # 'exact rays', 'seidel sums', in script order
+    warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
+    colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
 
     def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
         from ..notebook import program_html
@@ -81,7 +85,7 @@ def interpret(script: t.Script, base: Path | None = None) -> Program:
     return _Interpreter(script, base or Path.cwd()).run()
 
 
-class _Interpreter(RayStatements):
+class _Interpreter(RayStatements, MaterialStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -369,7 +373,7 @@ class _Interpreter(RayStatements):
         """wavelengths W [primary], W, ..."""
         items = []
         for item in node.items:
-            measure = self.value(item.value)
+            measure = self.wavelength_measure(item.value)  # also a line letter: d, F, C'
             if measure.bare or measure.dimension != (1, 0):
                 raise LayoutUnitError("a wavelength needs a length unit", self.span(item.value),
                                       expected="a wavelength such as 587.6 nm or 0.5876 um")
@@ -385,6 +389,8 @@ class _Interpreter(RayStatements):
 
     def statement_Report(self, node: t.Report) -> None:
         """report | report QUANTITY, QUANTITY, ..."""
+        if self.report_chromatic(node):  # colour quantities (materialstatements.py)
+            return
         self.reports.append(tuple(self.quantity(q).name for q in node.quantities))
 
     def statement_Hazard(self, node: t.Hazard) -> None:
@@ -465,6 +471,7 @@ class _Interpreter(RayStatements):
             stop=None, image=self.image or ImageSpec(), wavelengths=self.wavelengths,
             title=self.title, units=self.units,
         )
+        system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
 
@@ -477,7 +484,8 @@ class _Interpreter(RayStatements):
         expectations = tuple(expectations)
         return Program(self.script.file, system, expectations, tuple(self.reports),
                        tuple(self.hazards), dict(self.names), rays=rays,
-                       ray_reports=self.ray_reports())
+                       ray_reports=self.ray_reports(),
+            colour=self.colour_requests(system), warnings=self.material_warnings())
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -521,7 +529,9 @@ class _Interpreter(RayStatements):
         return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
 
     def expectation(self, node: t.Expect) -> Expectation:
-        if isinstance(node, t.ExpectRays) or is_ray_quantity(node.quantity.text):
+        request = self.expect_request(node)  # colour quantities, `at wavelength F`
+        if request is None and (isinstance(node, t.ExpectRays)
+                                or is_ray_quantity(node.quantity.text)):
             return self.ray_expectation(node)
         info = self.quantity(node.quantity)
         convert = {LENGTH: lambda e: self.length(e, "the expected value"),
@@ -544,7 +554,7 @@ class _Interpreter(RayStatements):
                 expected="'± 0.05' or 'within 1%' after the value")
         span = self.span(node)
         return Expectation(info.name, info.kind, node.op, expected, tolerance, relative, span,
-                           span.line_text.strip())
+                           span.line_text.strip(), request=request)
 
 
 def _literal(node: t.Expr) -> str:
@@ -553,7 +563,7 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, _Interpreter)
+    for cls in (RayStatements, MaterialStatements, _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
 }

@@ -63,7 +63,17 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
         "first_order": {name: _quantity(name, results[name], units) for name in REPORT_ORDER},
         "notes": list(results.notes),
         "expectations": _checks(checked),
+        **_colour(program, results),
     }
+
+
+def _colour(program: Program, results: FirstOrder) -> dict:
+    """Surroundings, per-wavelength values and colour requests (reports/chromatic.py)."""
+    if program.colour is None and not program.warnings:
+        return {}
+    from .chromatic import colour_json, has_colour
+
+    return {"colour": colour_json(program, results)} if has_colour(program) else {}
 
 
 def check_json(program: Program, checked: list[CheckResult]) -> dict:

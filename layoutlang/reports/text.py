@@ -146,6 +146,12 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
     lines += ["", "boundaries"]
     lines += layout_table(system)
     lines += ["", "setting"] + _setting_lines(system)
+    colour = program.colour is not None or program.warnings
+    if colour:  # surroundings and dispersive media (reports/chromatic.py)
+        from .chromatic import has_colour, setting_lines
+
+        colour = has_colour(program)
+        lines += setting_lines(program) if colour else []
     lines += ["", "first-order properties"] + first_order_table(results, system.units)
     for note in results.notes:
         lines.append(f"  note: {note}")
@@ -163,5 +169,9 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
         from .rays import ray_sections
 
         lines += ray_sections(program, results)
+    if colour:  # per-wavelength values, colour requests, achromats, warnings
+        from .chromatic import colour_lines
+
+        lines += colour_lines(program, results)
     lines += ["", "expectations"] + expectation_lines(checked)
     return "\n".join(lines) + "\n"

@@ -293,6 +293,100 @@ class _Builder(Transformer):
         quantity, op, value = items
         return t.ExpectRays(quantity, op, value, None, None, "depth of focus", pos=_pos(meta))
 
+    # --- real materials and several wavelengths (grammar/materials.lark) -------------------
+    def pair(self, meta, items):
+        return (items[0], items[1])
+
+    def sellmeier_constant(self, meta, items):
+        return ("constant", items[0])
+
+    def material_valid(self, meta, items):
+        return ("valid", (items[0], items[1]))
+
+    def material_relative(self, meta, items):
+        return ("relative to", str(items[0]))
+
+    def _medium_model(self, meta, name, kind, rest, **fields):
+        options = _options(item for item in rest if isinstance(item, tuple)
+                           and isinstance(item[0], str))
+        return t.MediumModel(_ident(name), kind, valid=options.get("valid"),
+                             relative_to=options.get("relative to"), pos=_pos(meta), **fields)
+
+    def medium_model_glass(self, meta, items):
+        name, index, abbe, *rest = items
+        return self._medium_model(meta, name, "model glass", rest, values=(index, abbe))
+
+    def medium_glass_code(self, meta, items):
+        name, code, *rest = items
+        return self._medium_model(meta, name, "glass code", rest, code=str(code))
+
+    def medium_sellmeier(self, meta, items):
+        name, constant, squared, *rest = items
+        pairs = tuple(item for item in rest if isinstance(item, tuple)
+                      and not isinstance(item[0], str))
+        return self._medium_model(meta, name, "sellmeier", rest, pairs=pairs,
+                                  squared=squared is not None,
+                                  constant=None if constant is None else constant[1])
+
+    def medium_cauchy(self, meta, items):
+        name, *rest = items
+        values = tuple(item for item in rest if not isinstance(item, tuple))
+        return self._medium_model(meta, name, "cauchy", rest, values=values)
+
+    def medium_table(self, meta, items):
+        name, *rest = items
+        pairs = tuple(item for item in rest if isinstance(item, tuple)
+                      and not isinstance(item[0], str))
+        return self._medium_model(meta, name, "table", rest, pairs=pairs)
+
+    def surroundings_air(self, meta, items):
+        return t.Surroundings("standard air", pos=_pos(meta))
+
+    def surroundings_vacuum(self, meta, items):
+        return t.Surroundings("vacuum", pos=_pos(meta))
+
+    def achromat(self, meta, items):
+        first, second, focal = items
+        return t.Achromat(_ident(first), _ident(second), focal, pos=_pos(meta))
+
+    def wavelength_primed(self, meta, items):
+        name, prime, primary = items
+        line = t.Name(str(name) + "'", pos=t.Pos(name.line, name.column, prime.end_line,
+                                                 prime.end_column))
+        return t.Wavelength(line, primary is not None, pos=_pos(meta))
+
+    def wavelength_named(self, meta, items):
+        name, prime = items
+        return t.WavelengthRef(str(name) + ("'" if prime is not None else ""), pos=_pos(meta))
+
+    def wavelength_number(self, meta, items):
+        value, unit = items
+        number = t.Number(str(value), str(unit), pos=_pos(meta))
+        return t.WavelengthRef(None, number, pos=_pos(meta))
+
+    def qualifier_of(self, meta, items):
+        return t.Qualifier("of", medium=_ident(items[0]), pos=_pos(meta))
+
+    def qualifier_at(self, meta, items):
+        refs = tuple(item for item in items if isinstance(item, t.WavelengthRef))
+        return t.Qualifier("at", wavelengths=refs, pos=_pos(meta))
+
+    def qualifier_between(self, meta, items):
+        return t.Qualifier("between", wavelengths=tuple(items), pos=_pos(meta))
+
+    def qualifier_across(self, meta, items):
+        return t.Qualifier("across", wavelengths=tuple(items), pos=_pos(meta))
+
+    def expect_qualified(self, meta, items):
+        quantity, *qualifiers = items[:-3]
+        op, value, tolerance = items[-3:]
+        return t.QualifiedExpect(quantity, op, value, tolerance, tuple(qualifiers),
+                                 pos=_pos(meta))
+
+    def report_qualified(self, meta, items):
+        quantity, *qualifiers = items
+        return t.QualifiedReport(quantity, tuple(qualifiers), pos=_pos(meta))
+
 
 _BUILDER = _Builder()
 
@@ -301,3 +395,52 @@ def build_script(parse_tree, file: str, text: str) -> t.Script:
     """The syntax tree of one parsed file."""
     statements = _BUILDER.transform(parse_tree)
     return t.Script(file, tuple(statements), text=text, pos=t.Pos(1, 1, 1, 1))
+
+
+def _symbolic_builders() -> None:
+    """The builder methods of grammar/symbolic.lark (symbols, nominal, derive, solve,
+    sensitivity), kept together so the feature reads in one place."""
+
+    def split(items):
+        quantities = tuple(i for i in items if isinstance(i, t.Quantity))
+        names = tuple(_ident(i) for i in items if isinstance(i, Token))
+        return quantities, names
+
+    def symbols(self, meta, items):
+        *names, assumption = items
+        return t.Symbols(tuple(_ident(n) for n in names),
+                         None if assumption is None else str(assumption.children[0]),
+                         pos=_pos(meta))
+
+    def nominal_value(self, meta, items):
+        return t.NominalValue(_ident(items[0]), items[1], pos=_pos(meta))
+
+    def nominal(self, meta, items):
+        return t.Nominal(tuple(items), pos=_pos(meta))
+
+    def derive(self, meta, items):
+        return t.Derive(tuple(items), pos=_pos(meta))
+
+    def condition(self, meta, items):
+        return t.Condition(items[0], items[1], pos=_pos(meta))
+
+    def solve(self, meta, items):
+        unknowns = tuple(_ident(i) for i in items if isinstance(i, Token))
+        conditions = tuple(i for i in items if isinstance(i, t.Condition))
+        return t.Solve(unknowns, conditions, pos=_pos(meta))
+
+    def sensitivity(self, meta, items):
+        quantities, names = split(items)
+        return t.Sensitivity(quantities, names, pos=_pos(meta))
+
+    def expect_sensitivity(self, meta, items):
+        quantity, name, op, value, tolerance = items
+        return t.ExpectSensitivity(quantity, _ident(name), op, value, tolerance, pos=_pos(meta))
+
+    for method in (symbols, nominal_value, nominal, derive, condition, solve, sensitivity,
+                   expect_sensitivity):
+        setattr(_Builder, method.__name__, v_args(meta=True)(method))
+
+
+_symbolic_builders()
+_BUILDER = _Builder()

@@ -345,3 +345,140 @@ class ExpectRays(Statement):
     tolerance: Tolerance | None = None
     field: Expr | None = None
     scale: str = ""
+
+
+# --- real materials and several wavelengths (grammar/materials.lark) ---------------------------
+
+
+@dataclass(frozen=True)
+class MediumModel(Statement):
+    """A medium with a dispersion model; kind is 'model glass' (values: index, Abbe number),
+    'glass code' (code: the digits as written), 'sellmeier' (pairs of B and λᵢ, or of B and C
+    when squared), 'cauchy' (values: the coefficients) or 'table' (pairs of λ and n)."""
+
+    name: Ident
+    kind: str
+    values: tuple[Expr, ...] = ()
+    pairs: tuple[tuple[Expr, Expr], ...] = ()
+    code: str | None = None
+    squared: bool = False
+    constant: Expr | None = None
+    valid: tuple[Expr, Expr] | None = None
+    relative_to: str | None = None  # 'air' | 'vacuum' | None (not said)
+
+
+@dataclass(frozen=True)
+class Surroundings(Statement):
+    """`layout in standard air` | `layout in vacuum`."""
+
+    environment: str  # 'standard air' | 'vacuum'
+
+
+@dataclass(frozen=True)
+class Achromat(Statement):
+    """`achromat from FIRST and SECOND[, focal length F]`: the thin-lens achromat condition."""
+
+    first: Ident
+    second: Ident
+    focal_length: Expr | None = None
+
+
+@dataclass(frozen=True)
+class WavelengthRef(Node):
+    """A wavelength named in a qualifier: a spectral line letter or `let` name (name, with
+    its apostrophe if primed), or a number with a length unit."""
+
+    name: str | None = None
+    number: Number | None = None
+
+
+@dataclass(frozen=True)
+class Qualifier(Node):
+    """`of MEDIUM`, `at wavelength W`, `between W and W`, `across W, W and W`."""
+
+    kind: str  # 'of' | 'at' | 'between' | 'across'
+    medium: Ident | None = None
+    wavelengths: tuple[WavelengthRef, ...] = ()
+
+
+@dataclass(frozen=True)
+class QualifiedExpect(Expect):
+    """An `expect` whose quantity carries qualifiers (medium, wavelengths)."""
+
+    qualifiers: tuple[Qualifier, ...] = ()
+
+
+@dataclass(frozen=True)
+class QualifiedReport(Statement):
+    """`report QUANTITY QUALIFIER...`: one quantity at stated wavelengths or of a medium."""
+
+    quantity: Quantity
+    qualifiers: tuple[Qualifier, ...] = ()
+
+__all__ += ["MediumModel", "Surroundings", "Achromat", "WavelengthRef", "Qualifier",
+            "QualifiedExpect", "QualifiedReport"]
+
+
+# --- symbolic statements (grammar/symbolic.lark) ----------------------------------------------
+
+__all__ += ["Symbols", "NominalValue", "Nominal", "Derive", "Condition", "Solve", "Sensitivity",
+            "ExpectSensitivity"]
+
+
+@dataclass(frozen=True)
+class Symbols(Statement):
+    """`symbols n1 n2 R positive`: free symbols and an optional assumption ('positive'/'real')."""
+
+    names: tuple[Ident, ...]
+    assumption: str | None = None
+
+
+@dataclass(frozen=True)
+class NominalValue(Node):
+    name: Ident
+    value: Expr
+
+
+@dataclass(frozen=True)
+class Nominal(Statement):
+    """`nominal R = 20, a = 100`: the values a symbolic layout is checked at."""
+
+    values: tuple[NominalValue, ...]
+
+
+@dataclass(frozen=True)
+class Derive(Statement):
+    quantities: tuple[Quantity, ...]
+
+
+@dataclass(frozen=True)
+class Condition(Node):
+    quantity: Quantity
+    value: Expr
+
+
+@dataclass(frozen=True)
+class Solve(Statement):
+    """`solve R so that image distance = 40 [and ...]`."""
+
+    unknowns: tuple[Ident, ...]
+    conditions: tuple[Condition, ...]
+
+
+@dataclass(frozen=True)
+class Sensitivity(Statement):
+    """`sensitivity of image distance to d, R`."""
+
+    quantities: tuple[Quantity, ...]
+    symbols: tuple[Ident, ...]
+
+
+@dataclass(frozen=True)
+class ExpectSensitivity(Statement):
+    """`expect sensitivity of image distance to d < 1.5`."""
+
+    quantity: Quantity
+    symbol: Ident
+    op: str
+    value: Expr
+    tolerance: Tolerance | None = None

@@ -1,0 +1,150 @@
+"""Report sections for materials and colour: surroundings, media, per-wavelength values,
+colour requests, the thin-lens achromat and warnings — as text lines and as JSON data.
+
+Only called when a script has something to say about them, so reports of constant-index
+layouts are unchanged and numpy is not imported for them.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from ..engines.firstorder import FirstOrder, Unavailable
+from ..interpret.interpreter import Program
+from ..measure import LENGTH_UNITS
+from ..testing import format_number
+
+__all__ = ["has_colour", "setting_lines", "colour_lines", "colour_json"]
+
+
+def has_colour(program: Program) -> bool:
+    """Whether the report needs any of these sections."""
+    colour = program.colour
+    return bool(program.warnings or len(program.system.wavelengths) >= 2 or colour is not None
+                and (colour.uses_dispersion or colour.reports or colour.achromats))
+
+
+def _nm(system, value: float) -> str:
+    return f"{format_number(value * LENGTH_UNITS[system.units] / LENGTH_UNITS['nm'])} nm"
+
+
+def _value(value: Any, unit: str) -> str:
+    if isinstance(value, Unavailable):
+        return str(value)
+    return f"{format_number(value)} {unit}".rstrip()
+
+
+def setting_lines(program: Program) -> list[str]:
+    """How indices are meant and what each dispersive medium is (for the setting section)."""
+    from ..materials.environment import describe_environment
+
+    system = program.system
+    if not any(m.model is not None for m in system.media):
+        return []
+    lines = [f"  surroundings: {describe_environment(system.environment)}"]
+    for medium in system.media:
+        if medium.model is not None and medium.name not in ("air", "vacuum"):
+            valid = getattr(medium.model, "valid_um", None)
+            where = (f", data valid {format_number(valid[0] * 1000)}–"
+                     f"{format_number(valid[1] * 1000)} nm" if valid else "")
+            lines.append(f"  medium {medium.name}: {medium.model.describe()}{where}")
+    return lines
+
+
+def _table(rows: list[list[str]]) -> list[str]:
+    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
+    return ["  " + "  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip()
+            for row in rows]
+
+
+def colour_lines(program: Program, results: FirstOrder) -> list[str]:
+    """The colour section: per-wavelength values, summary, requests, achromats, warnings."""
+    from ..engines.chromatic import colour_table, evaluate
+
+    system = program.system
+    units = system.units
+    lines: list[str] = []
+    table = colour_table(system, results)
+    if table is not None:
+        lines += ["", "colour (paraxial, per wavelength)"]
+        rows = [["wavelength", "focal length", "image distance", "chief ray on image plane"]]
+        for i, w in enumerate(table.wavelengths):
+            cells = [_nm(system, w) + (" (primary)" if system.wavelengths[i].primary else "")]
+            for values in (table.focal_length, table.image_distance, table.chief_height):
+                cells.append(str(values) if isinstance(values, Unavailable)
+                             else _value(float(values[i]), units))
+            rows.append(cells)
+        lines += _table(rows)
+        lines += _table([[request.describe(), _value(value, units)]
+                         for request, value in table.summary])
+    colour = program.colour
+    if colour is not None and colour.reports:
+        lines += ["", "requested (colour)"]
+        rows = []
+        for request in colour.reports:
+            from ..checks import display_unit, to_display
+            from ..quantities import QUANTITIES
+
+            kind = QUANTITIES[request.quantity].kind
+            value = to_display(evaluate(request, system, results), kind, units)
+            rows.append([request.describe(), _value(value, display_unit(kind, units))])
+        lines += _table(rows)
+    for achromat in () if colour is None else colour.achromats:
+        lines += ["", f"achromat from {achromat.first} and {achromat.second}"]
+        lines += ["  " + line for line in _achromat_lines(achromat, results, units)]
+    if program.warnings:
+        lines += ["", "warnings"] + ["  " + w for w in program.warnings]
+    return lines
+
+
+def _achromat_lines(achromat, results: FirstOrder, units: str) -> list[str]:
+    from ..materials.achromat import thin_achromat
+
+    focal = achromat.focal_length
+    if focal is None:
+        focal = results["focal length"]
+        if isinstance(focal, Unavailable):
+            return [f"no focal length to design for: {focal}"]
+    try:
+        design = thin_achromat(achromat.first_indices, achromat.second_indices, focal)
+    except ValueError as error:
+        return [str(error)]
+    return design.equations((achromat.first, achromat.second), achromat.labels, units)
+
+
+def colour_json(program: Program, results: FirstOrder) -> dict:
+    """The same content for machines (12 significant digits, stable keys)."""
+    from ..engines.chromatic import colour_table, evaluate
+    from ..materials.environment import describe_environment
+
+    def number(value):
+        if isinstance(value, Unavailable):
+            return {"value": None, "why": value.reason}
+        return {"value": float(f"{float(value):.12g}")}
+
+    system = program.system
+    data: dict[str, Any] = {}
+    if any(m.model is not None for m in system.media):
+        data["surroundings"] = system.environment
+        data["surroundings_meaning"] = describe_environment(system.environment)
+        data["media"] = {m.name: m.model.describe() for m in system.media
+                         if m.model is not None and m.name not in ("air", "vacuum")}
+    table = colour_table(system, results)
+    if table is not None:
+        data["per_wavelength"] = [{
+            "wavelength_nm": float(f"{w * LENGTH_UNITS[system.units] / LENGTH_UNITS['nm']:.12g}"),
+            "focal_length": number(table.focal_length if isinstance(table.focal_length,
+                                                                    Unavailable)
+                                   else table.focal_length[i]),
+            "image_distance": number(table.image_distance if isinstance(table.image_distance,
+                                                                        Unavailable)
+                                     else table.image_distance[i]),
+        } for i, w in enumerate(table.wavelengths)]
+        data["summary"] = {request.describe(): number(value) for request, value in table.summary}
+    colour = program.colour
+    if colour is not None and colour.reports:
+        data["requested"] = {r.describe(): number(evaluate(r, system, results))
+                             for r in colour.reports}
+    if program.warnings:
+        data["warnings"] = list(program.warnings)
+    return data
