@@ -164,6 +164,9 @@ class Workspace:
         if not self.snapshot.complete:
             raise LayoutValueError(f"the layout is not complete yet: {self.snapshot.incomplete}")
         asked = evaluate(self.statements + (statement,), self.base)
+        kind = _SYMBOLIC_REQUESTS.get(type(statement).__name__)
+        if kind is not None and asked.program.symbolic is not None:
+            return _symbolic_answer(asked.program, kind)
         old = self.text_report(self.snapshot).splitlines()
         new = full_report(asked.program, asked.results, list(asked.checked)).splitlines()
         added = []
@@ -226,6 +229,23 @@ def split_header(text: str) -> tuple[str, str]:
     if header and not header.endswith("\n"):
         header += "\n"
     return header, "".join(lines[count:])
+
+
+#: Symbolic questions and the list of requests each adds to the program's symbolic part.
+_SYMBOLIC_REQUESTS = {"Derive": "derives", "Solve": "solves", "Sensitivity": "sensitivities"}
+
+
+def _symbolic_answer(program, kind: str) -> str:
+    """Carry out just the request the user typed (the last one of its kind), as `layoutlang
+    derive` would print it."""
+    from dataclasses import replace
+
+    from ..symbolic import render
+
+    part = program.symbolic
+    only = {name: () for name in _SYMBOLIC_REQUESTS.values()}
+    only[kind] = getattr(part, kind)[-1:]
+    return render.text(render.carry_out(replace(program, symbolic=replace(part, **only)))).rstrip()
 
 
 def write_atomically(path: Path, text: str) -> None:

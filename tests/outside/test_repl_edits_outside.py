@@ -54,3 +54,18 @@ def test_moving_the_object_moves_the_image_as_the_single_surface_equation_says()
     workspace.run("undo")
     workspace.run("undo")
     assert workspace.snapshot.results["image distance"] == pytest.approx(30.0, rel=1e-12)
+
+
+def test_derive_and_solve_in_the_session_follow_the_single_surface_equation() -> None:
+    # n1/s + n2/s' = (n2 - n1)/R (Hecht, 2017, Optics, 5th ed., eq. 5.8, from memory) with
+    # n1 = 1, n2 = 1.5, s = 100: s' = 150 R / (50 - R); s' = 40 needs R = 200/19.
+    workspace = Workspace()
+    for line in ("symbols R positive", "nominal R = 20", "medium glass index 1.5",
+                 "object 100 before", "start in air", "surface front radius R into glass"):
+        assert "error" not in workspace.run(line)
+    kept = workspace.statements
+    derived = workspace.run("derive image distance")
+    assert "150*R/(50 - R)" in derived and "100 mm" in derived
+    solved = workspace.run("solve R so that image distance = 40")
+    assert "R = 200/19" in solved
+    assert workspace.statements == kept  # questions are answered, not kept
