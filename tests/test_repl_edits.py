@@ -120,3 +120,10 @@ def test_change_stop_without_a_stop_says_how_to_add_one() -> None:
 def test_scope_names_lists_boundaries_media_and_constants() -> None:
     assert scope_names(parse(START).statements) == [
         "air", "back", "crown", "field", "front", "goal", "vacuum"]
+
+
+def test_change_a_symbols_nominal_value() -> None:
+    script = "symbols R d positive\nnominal R = 20, d = 2\n"
+    text, said = edit("change d to 3", script)
+    assert text == "symbols R d positive\nnominal R = 20, d = 3\n"
+    assert said == "d is now nominally 3"

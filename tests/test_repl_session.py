@@ -116,3 +116,10 @@ def test_typed_lines_go_to_the_history() -> None:
     history = InMemoryHistory()
     run_session("show table\rundo\r\x04", Workspace.open(CAMERA), history=history)
     assert list(history.load_history_strings()) == ["undo", "show table"]
+
+
+def test_the_command_line_refuses_a_script_with_errors(tmp_path: Path, capsys) -> None:
+    bad = tmp_path / "bad.lay"
+    bad.write_text("start in air\nsurface front radius into air\n", encoding="utf-8")
+    assert main(["repl", str(bad), "--no-history"]) == 2
+    assert "bad.lay:2:" in capsys.readouterr().err

@@ -93,8 +93,16 @@ def _change(statements: Statements, node: t.Change, text: str) -> tuple[Statemen
             if isinstance(statement, t.Let) and statement.name.text == name:
                 return _with(statements, i, replace(statement, value=node.value)), \
                     f"{name} is now {_expr(node.value)}"
+            # a symbol's nominal value (grammar/symbolic.lark): `nominal R = 20`
+            values = getattr(statement, "values", None)
+            if type(statement).__name__ == "Nominal" and any(
+                    v.name.text == name for v in values):
+                new = tuple(replace(v, value=node.value) if v.name.text == name else v
+                            for v in values)
+                return _with(statements, i, replace(statement, values=new)), \
+                    f"{name} is now nominally {_expr(node.value)}"
         raise LayoutNameError(f"no constant named {name!r}", _span(node.name, text),
-                              expected="a name defined with 'let'",
+                              expected="a name defined with 'let' (or a symbol's nominal value)",
                               hint="to change a surface, name the property: "
                                    f"'change {name} radius to ...'")
     i = _boundary_index(statements, node.name, text)
