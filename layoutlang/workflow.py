@@ -31,6 +31,9 @@ def add_commands(commands) -> None:
     draw.add_argument("file", help="a layout script (.lay)")
     draw.add_argument("-o", "--output", required=True, metavar="OUT",
                       help="the picture to write: OUT.svg, OUT.png or OUT.pdf")
+    draw.add_argument("--rays", choices=("exact", "paraxial"), default="exact",
+                      help="trace the drawn rays exactly (default, where the layout allows) or "
+                           "paraxially")
     report = commands.add_parser("report", help="one document: tables, checks and the drawing")
     report.add_argument("file", help="a layout script (.lay)")
     report.add_argument("--format", choices=REPORT_FORMATS, default="md", dest="doc_format",
@@ -46,7 +49,7 @@ def run_command(args: argparse.Namespace) -> int:
         if args.command == "format":
             return _format(args.files, args.check, args.diff)
         if args.command == "draw":
-            return _draw(args.file, args.output)
+            return _draw(args.file, args.output, args.rays == "exact")
         return _report(args.file, args.doc_format, args.output)
     except LayoutError as error:
         print(error, file=sys.stderr)
@@ -89,14 +92,15 @@ def _output_format(output: str, allowed: tuple[str, ...]) -> str:
     return suffix
 
 
-def _draw(path: str, output: str) -> int:
+def _draw(path: str, output: str, exact: bool = True) -> int:
     from .interpret.interpreter import load_file
     from .reports.drawing import save_drawing
 
     kind = _output_format(output, DRAWING_FORMATS)
     program = load_file(path)
     try:
-        save_drawing(program.system, output, kind, tuple(getattr(program, "hazards", ())))
+        save_drawing(program.system, output, kind, tuple(getattr(program, "hazards", ())),
+                     exact)
     except OSError as error:
         raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
     print(f"{output}: written")

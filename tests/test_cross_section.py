@@ -36,9 +36,9 @@ def test_sag_matches_the_sphere() -> None:
 
 
 def test_thin_lens_rays_meet_where_the_gaussian_formula_says() -> None:
-    # 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50, s = 150 → s' = 75,
-    # magnification -s'/s = -0.5, so the chief ray from height 2 ends at -1.
-    section = _section("""object 150 before, height 2
+    # 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50, s = 100 → s' = 100,
+    # magnification -s'/s = -1, so the chief ray from height 2 ends at -2.
+    section = _section("""object 100 before, height 2
 start in air
 lens thin focal length 50
 stop at thin, diameter 10
@@ -47,15 +47,28 @@ image at focus
     marginal = [r for r in section.rays if r.role == "marginal"]
     chief = [r for r in section.rays if r.role == "chief"]
     assert len(marginal) == 2 and len(chief) == 1
-    assert section.object_plane == (-150.0, 2.0)
-    assert marginal[0].z[0] == pytest.approx(-150) and marginal[0].y[0] == pytest.approx(0)
-    assert marginal[0].z[-1] == pytest.approx(75) and marginal[0].y[-1] == pytest.approx(0, abs=1e-9)
-    assert chief[0].y[-1] == pytest.approx(-1.0)
-    assert section.image[0] == pytest.approx(75)
+    assert section.object_plane == (-100.0, 2.0)
+    assert marginal[0].z[0] == pytest.approx(-100) and marginal[0].y[0] == pytest.approx(0)
+    assert marginal[0].z[-1] == pytest.approx(100)
+    assert marginal[0].y[-1] == pytest.approx(0, abs=1e-9)
+    assert chief[0].y[-1] == pytest.approx(-2.0)
+    assert section.image[0] == pytest.approx(100)
     assert section.stop == (pytest.approx(0.0), pytest.approx(5.0))
     # no clear diameter: the aperture comes from the ray heights, with a margin
     assert section.profiles[0].semi_aperture == pytest.approx(5.0 * APERTURE_MARGIN)
     assert not section.profiles[0].from_clear_diameter
+
+
+def test_a_far_object_is_not_drawn_and_the_rays_are_cut_short() -> None:
+    section = _section("""object 5000 before, height 2
+start in air
+lens thin focal length 50
+stop at thin, diameter 10
+image at focus
+""")
+    assert section.object_plane is None
+    assert any("far away" in note for note in section.notes)
+    assert all(r.z[0] > -5000 for r in section.rays)
 
 
 def test_concave_mirror_folds_the_path_back_to_its_focus() -> None:
@@ -108,3 +121,38 @@ image at focus
     ray = next(r for r in section.rays if r.virtual_z)
     assert ray.virtual_z[-1] < 0  # the image is upstream of the lens
     assert section.notes and "no stop" in section.notes[0]
+
+
+def test_exact_rays_show_the_spherical_aberration_of_a_mirror() -> None:
+    pytest.importorskip("layoutlang.engines.realrays")
+    # A ray parallel to the axis at height h meets a sphere of radius R at angle θ, sin θ = h/R,
+    # and after reflection crosses the axis R / (2 cos θ) from the centre of curvature
+    # (common practice: plane geometry of reflection at a sphere). R = 200, h = 40 → the ray
+    # crosses 200 - 100/cos θ = 97.938 before the vertex, closer than the paraxial 100.
+    text = """object at infinity
+start in air
+mirror main radius -200, clear diameter 80
+stop at main, diameter 80
+image at focus
+"""
+    section = cross_section(loads(text).system, exact=True)
+    ray = next(r for r in section.rays if r.role == "marginal")
+    assert ray.label == "exact"
+    theta = math.asin(40 / 200)
+    assert _axis_crossing(ray.z[1:], ray.y[1:]) == pytest.approx(-(200 - 100 / math.cos(theta)),
+                                                                  rel=1e-9)
+    paraxial = cross_section(loads(text).system, exact=False)
+    assert _axis_crossing(paraxial.rays[0].z[1:], paraxial.rays[0].y[1:]) == pytest.approx(-100)
+
+
+def test_exact_rays_fall_back_to_paraxial_with_a_note() -> None:
+    section = cross_section(loads("""medium glass index 1.5
+object 35 before, height 2
+start in air
+surface flat into glass
+gap 8
+surface radius -24.6 into air
+image at focus
+""").system, exact=True)
+    assert all(r.label == "" for r in section.rays)
+    assert any("paraxial rays drawn: exact rays need a stop" in n for n in section.notes)

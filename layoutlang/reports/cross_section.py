@@ -194,12 +194,15 @@ def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | No
     return marginal, chief, notes
 
 
-def cross_section(system: System, results: FirstOrder | None = None) -> CrossSection:
+def cross_section(system: System, results: FirstOrder | None = None,
+                  exact: bool = False) -> CrossSection:
     """Lay out a numeric System in the plane.
 
     Args:
         system: the layout (numbers, not symbols).
         results: its first-order properties, if already computed.
+        exact: trace the drawn rays exactly (where the exact-ray engine is present and the
+            layout allows it: a stop, finite pupils); paraxial rays otherwise, with a note.
 
     Returns:
         The profiles, elements, rays, stop and image plane in global coordinates.
@@ -257,7 +260,7 @@ def cross_section(system: System, results: FirstOrder | None = None) -> CrossSec
         before = lead + upstream
     else:
         distance = float(system.object.distance)
-        if 0 < distance <= 2.5 * max(length_scale, lead):
+        if 0 < distance <= 1.5 * max(length_scale, lead):  # else the layout gets too small
             before = distance
             object_plane = (z_first - distance, float(system.object.height))
         else:
@@ -299,6 +302,14 @@ def cross_section(system: System, results: FirstOrder | None = None) -> CrossSec
         tips = [abs(r.virtual_y[-1] if r.virtual_y else r.y[-1]) for r in rays]
         height = max(tips + [0.15 * max(p.semi_aperture for p in profiles)])
         image = (z_last + sense_k * after, 1.15 * height)
+    if exact:
+        traced = _exact_rays(system, results, z_first - before,
+                             z_last + sense_k * (after if after >= 0 else lead))
+        if isinstance(traced, str):
+            notes.append(f"paraxial rays drawn: exact rays {traced}")
+        else:
+            rays, lost = traced
+            notes.extend(lost)
     stop = None
     stop_z = _stop_z(system, vertices)
     if stop_z is not None and not isinstance(results["stop diameter"], Unavailable):
@@ -316,3 +327,69 @@ def _flip(start):
 
 def _heights_at(heights: dict, start, i: int) -> float:
     return 0.0 if start is None else heights[id(start)][i]
+
+
+def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: float
+                ) -> tuple[list[RayPath], list[str]] | str:
+    """The marginal and chief rays traced exactly (Snell's law at the real spheres), launched
+    from the object point toward the paraxial entrance pupil (edge or centre). Returns the
+    ray paths and notes on lost rays, or the reason (words) there are none."""
+    try:
+        from ..engines import realrays
+    except ImportError:
+        return "need the exact-ray engine"
+    if system.stop is None:
+        return "need a stop"
+    pupil_z, pupil_d = results["entrance pupil position"], results["entrance pupil diameter"]
+    for value in (pupil_z, pupil_d):
+        if isinstance(value, Unavailable):
+            return f"need a finite entrance pupil ({value})"
+    pupil_z, radius = float(pupil_z), float(pupil_d) / 2
+    obj = system.object
+    launches = [("marginal", 0.0, radius), ("marginal", 0.0, -radius)]
+    if obj.at_infinity:
+        slope = -math.tan(float(obj.field_angle))
+        if slope:
+            launches.append(("chief", slope, 0.0))
+    elif float(obj.height):
+        launches.append(("chief", 1.0, 0.0))
+    geo = realrays.geometry(system)
+    indices = [float(n) for n in system.indices()]
+    boundary_steps = [k for k, step in enumerate(geo.steps) if step.boundary >= 0]
+    paths, notes = [], []
+    for role, field_, pupil_y in launches:
+        if obj.at_infinity:  # parallel rays, through the pupil point at the pupil plane
+            y_start = pupil_y + field_ * (z_start - pupil_z)
+            start = realrays.Rays.start(0.0, y_start, z_start, 0.0, field_, 1.0)
+        else:
+            distance, height = float(obj.distance), float(obj.height) * field_
+            start = realrays.Rays.start(0.0, height, -distance, 0.0, pupil_y - height,
+                                        pupil_z + distance)
+        zs, ys = [], []
+        if obj.at_infinity or -float(obj.distance) <= z_start:
+            t = (z_start - start.z[0]) / start.kz[0]
+            zs.append(z_start)
+            ys.append(float(start.y[0] + t * start.ky[0]))
+        else:
+            zs.append(float(start.z[0]))
+            ys.append(float(start.y[0]))
+        lost = None
+        rays = start
+        for k in boundary_steps:
+            rays = realrays.trace(start.copy(), geo, indices, geo.steps[: k + 1])
+            if rays.status[0] in (realrays.MISSED, realrays.TOTAL_REFLECTION) or \
+                    not math.isfinite(float(rays.y[0])):
+                lost = f"an exact {role} ray is {realrays.STATUS_WORDS[int(rays.status[0])]} at " \
+                       f"{geo.steps[k].name}"
+                break
+            zs.append(float(rays.z[0]))
+            ys.append(float(rays.y[0]))
+        if lost:
+            notes.append(lost)
+        else:
+            t = (z_end - rays.z[0]) / rays.kz[0]
+            if t > 0:
+                zs.append(z_end)
+                ys.append(float(rays.y[0] + t * rays.ky[0]))
+        paths.append(RayPath(role, "exact", tuple(zs), tuple(ys)))
+    return paths, notes

@@ -30,6 +30,10 @@ STYLE = {
     "font": 8,
 }
 
+#: The drawing's width in inches; its height follows the layout (equal scales on both axes).
+FIGURE_WIDTH = 9.0
+MAX_AXES_HEIGHT = 6.5
+
 _METADATA = {"svg": {"Date": None}, "pdf": {"CreationDate": None, "ModDate": None},
              "png": {}}
 
@@ -50,21 +54,24 @@ def _wavelength_colour(nm: float) -> str:
     return STYLE["ray"]
 
 
-def _ray_sets(system: System) -> list[tuple[str, str, CrossSection]]:
+def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]]:
     """(label, colour, cross-section) per wavelength where the layout's indices depend on the
-    wavelength; one set in our ray colour otherwise."""
-    section = cross_section(system)
+    wavelength, primary first; one set in our ray colour otherwise."""
+    section = cross_section(system, exact=exact)
     waves = list(system.wavelengths)
     at = getattr(system, "at_wavelength", None)
-    if at is None or len(waves) < 2:
+    dispersive = any(getattr(m, "model", None) is not None for m in system.media)
+    if at is None or len(waves) < 2 or not dispersive:
         label = ""
-        if len(waves) == 1:
-            label = f"{_nm(system, waves[0].value):g} nm"
+        if waves:
+            label = ", ".join(f"{_nm(system, w.value):g}" for w in waves) + " nm"
         return [(label, STYLE["ray"], section)]
     sets = []
+    primary = system.primary_wavelength
+    waves = [primary] + [w for w in waves if w is not primary]
     for wave in waves:
         nm = _nm(system, wave.value)
-        sets.append((f"{nm:g} nm", _wavelength_colour(nm), cross_section(at(wave))))
+        sets.append((f"{nm:g} nm", _wavelength_colour(nm), cross_section(at(wave.value), exact=exact)))
     return sets
 
 
@@ -74,29 +81,52 @@ def _nm(system: System, value: Any) -> float:
     return round(float(value) * LENGTH_UNITS[system.units] * 1e6, 3)
 
 
-def figure(system: System, hazards: tuple[str, ...] = ()) -> Any:
+def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) -> Any:
     """A matplotlib Figure of the layout (not attached to any GUI backend).
 
     Args:
         system: the layout.
         hazards: the script's declared hazards (laser, eye, sunlight): the drawing then carries
             a short caution, since a picture often travels without its report.
+        exact: draw exactly traced rays where the layout allows (paraxial otherwise).
     """
     from matplotlib.figure import Figure
     from matplotlib.lines import Line2D
 
-    sets = _ray_sets(system)
+    sets = _ray_sets(system, exact)
     section = sets[0][2]
     z_min, z_max, y_max = section.extent()
     for _, _, other in sets[1:]:
         a, b, c = other.extent()
         z_min, z_max, y_max = min(z_min, a), max(z_max, b), max(y_max, c)
     width = max(z_max - z_min, 1e-9)
-    aspect = (3.1 * y_max) / (1.08 * width)
-    fig_w = 9.0
-    fig_h = min(max(fig_w * aspect + 1.2, 3.0), 8.0)
-    fig = Figure(figsize=(fig_w, fig_h), dpi=110)
-    ax = fig.add_subplot(1, 1, 1)
+    bar = 0.0
+    if section.stop is not None:
+        bar = max(0.22 * section.stop[1], 0.04 * y_max)
+    top = max([p.semi_aperture for p in section.profiles]
+              + ([section.stop[1] + bar] if section.stop else []))
+    levels = _label_levels(section, width)
+    notes = list(section.notes)
+    if hazards:
+        notes.insert(0, "CAUTION (" + ", ".join(hazards) + "): see the report's caution; follow "
+                     "local codes and licensed practice")
+    # Equal scales on both axes (shapes stay true), so the figure's height follows the layout:
+    # the axes are placed by hand, in inches, with room for the names above and the words below.
+    span = 1.08 * width
+    axes_w = FIGURE_WIDTH - 0.4
+    for _ in range(2):
+        per_unit = axes_w * 72 / span  # points per layout unit
+        y_top = top + (8 + 11 * (max(levels, default=0) + 1)) / per_unit
+        y_bottom = -max(y_max, top) - 16 / per_unit
+        axes_h = (y_top - y_bottom) * per_unit / 72
+        if axes_h <= MAX_AXES_HEIGHT:
+            break
+        axes_w *= MAX_AXES_HEIGHT / axes_h
+    header, footer = 0.75, 0.5 + 0.15 * len(notes)
+    fig_h = header + axes_h + footer
+    fig = Figure(figsize=(FIGURE_WIDTH, fig_h), dpi=110)
+    ax = fig.add_axes([(FIGURE_WIDTH - axes_w) / 2 / FIGURE_WIDTH, footer / fig_h,
+                       axes_w / FIGURE_WIDTH, axes_h / fig_h])
     ink, font = STYLE["ink"], STYLE["font"]
 
     ax.axhline(0, color=STYLE["axis"], lw=0.7, ls=(0, (8, 3, 1, 3)), zorder=1)
@@ -107,12 +137,7 @@ def figure(system: System, hazards: tuple[str, ...] = ()) -> Any:
         ax.fill(z, y, facecolor=tint, edgecolor=ink, lw=0.9, zorder=2)
     for profile in section.profiles:
         _draw_profile(ax, profile, y_max)
-    bar = 0.0
-    if section.stop is not None:
-        bar = max(0.22 * section.stop[1], 0.04 * y_max)
-    top = max([p.semi_aperture for p in section.profiles]
-              + ([section.stop[1] + bar] if section.stop else []))
-    for profile, level in zip(section.profiles, _label_levels(section, width)):
+    for profile, level in zip(section.profiles, levels):
         ax.plot([profile.z, profile.z], [profile.semi_aperture, top], color=STYLE["axis"],
                 lw=0.5, zorder=1)
         ax.annotate(profile.name, (profile.z, top), (0, 4 + 11 * level),
@@ -125,20 +150,21 @@ def figure(system: System, hazards: tuple[str, ...] = ()) -> Any:
         for sign in (1, -1):
             ax.plot([z, z], [sign * r, sign * (r + bar)], color=ink, lw=3.2,
                     solid_capstyle="butt", zorder=4)
-        ax.text(z, -(r + bar) - 0.04 * y_max, "stop", ha="center", va="top", fontsize=font,
-                color=ink)
+        ax.annotate("stop", (z, -(r + bar)), (0, -2), textcoords="offset points",
+                    ha="center", va="top", fontsize=font, color=ink)
     if section.image is not None:
         z, h = section.image
         virtual = any(ray.virtual_z for ray in section.rays)
         ax.plot([z, z], [-h, h], color=ink, lw=1.1, zorder=4, ls=(0, (2, 2)) if virtual else "-")
-        ax.text(z, -h - 0.04 * y_max, "virtual image" if virtual else "image", ha="center",
-                va="top", fontsize=font, color=ink)
+        ax.annotate("virtual image" if virtual else "image", (z, -h), (0, -2),
+                    textcoords="offset points", ha="center", va="top", fontsize=font, color=ink)
     if section.object_plane is not None:
         z, h = section.object_plane
         if h:
             ax.annotate("", (z, h), (z, 0), arrowprops={"arrowstyle": "-|>", "color": ink,
                                                           "lw": 1.0})
-        ax.text(z, -0.06 * y_max, "object", ha="center", va="top", fontsize=font, color=ink)
+        ax.annotate("object", (z, 0), (0, -3), textcoords="offset points", ha="center",
+                    va="top", fontsize=font, color=ink)
 
     handles = []
     for label, colour, rays in sets:
@@ -151,14 +177,14 @@ def figure(system: System, hazards: tuple[str, ...] = ()) -> Any:
                         alpha=0.6, zorder=3)
         if label:
             handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
-    handles.append(Line2D([], [], color=ink, lw=0.9, label="marginal ray"))
-    handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)), label="chief ray"))
-    ax.legend(handles=handles, loc="lower left", fontsize=font, frameon=False,
-              ncol=min(len(handles), 5), bbox_to_anchor=(0, 1.0))
+    kind = "exact" if any(r.label == "exact" for r in section.rays) else "paraxial"
+    handles.append(Line2D([], [], color=ink, lw=0.9, label=f"marginal ray ({kind})"))
+    handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)), label=f"chief ray ({kind})"))
+    fig.legend(handles=handles, loc="upper left", fontsize=font, frameon=False,
+               ncol=min(len(handles), 5), bbox_to_anchor=(0.1 / FIGURE_WIDTH, 1 - 0.32 / fig_h))
 
     ax.set_xlim(z_min - 0.04 * width, z_max + 0.04 * width)
-    ax.set_ylim(-1.35 * y_max, 1.75 * y_max)
-    ax.set_aspect("equal", adjustable="box")
+    ax.set_ylim(y_bottom, y_top)
     for side in ("top", "right", "left"):
         ax.spines[side].set_visible(False)
     ax.spines["bottom"].set_color(STYLE["axis"])
@@ -166,15 +192,11 @@ def figure(system: System, hazards: tuple[str, ...] = ()) -> Any:
     ax.set_xlabel(f"z along the axis ({section.units}); light starts toward +z", fontsize=font,
                   color=ink)
     title = section.title or "layout"
-    fig.suptitle(title, fontsize=font + 2, color=ink, x=0.02, ha="left")
-    notes = list(section.notes)
-    if hazards:
-        notes.insert(0, "CAUTION (" + ", ".join(hazards) + "): see the report's caution; follow "
-                     "local codes and licensed practice")
+    fig.text(0.2 / FIGURE_WIDTH, 1 - 0.1 / fig_h, title, fontsize=font + 2, color=ink,
+             va="top")
     if notes:
-        fig.text(0.02, 0.01, "\n".join(notes), fontsize=font - 1, color=STYLE["axis"],
-                 va="bottom")
-    fig.tight_layout(rect=(0, 0.03 * len(notes), 1, 1))
+        fig.text(0.2 / FIGURE_WIDTH, 0.06 / fig_h, "\n".join(notes), fontsize=font - 1,
+                 color=STYLE["axis"], va="bottom")
     return fig
 
 
@@ -217,13 +239,14 @@ def _draw_profile(ax: Any, profile, y_max: float) -> None:
 
 
 def save_drawing(system: System, path: str | Path, kind: str | None = None,
-                 hazards: tuple[str, ...] = ()) -> None:
+                 hazards: tuple[str, ...] = (), exact: bool = True) -> None:
     """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix)."""
     kind = kind or Path(path).suffix.lower().lstrip(".")
-    Path(path).write_bytes(drawing_bytes(system, kind, hazards))
+    Path(path).write_bytes(drawing_bytes(system, kind, hazards, exact))
 
 
-def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = ()) -> bytes:
+def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = (),
+                  exact: bool = True) -> bytes:
     """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
     import io
 
@@ -231,7 +254,7 @@ def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = 
 
     with matplotlib.rc_context({"svg.hashsalt": "layoutlang", "svg.fonttype": "none",
                                 "pdf.compression": 6, "font.family": "DejaVu Sans"}):
-        fig = figure(system, hazards)
+        fig = figure(system, hazards, exact)
         buffer = io.BytesIO()
         fig.savefig(buffer, format=kind, metadata=_METADATA[kind])
     return buffer.getvalue()
