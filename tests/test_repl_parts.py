@@ -142,3 +142,16 @@ def test_default_history_path_lives_in_the_data_folder(monkeypatch, tmp_path: Pa
 def test_key_bindings_cover_ctrl_c_and_ctrl_d() -> None:
     keys = {binding.keys for binding in session_key_bindings().bindings}
     assert keys == {("c-c",), ("c-d",)}
+
+
+def test_unit_words_offered_are_the_units_the_grammar_lexes() -> None:
+    import re
+
+    from layoutlang.repl.completer import _UNIT_WORDS
+    from layoutlang.syntax.parser import parser
+
+    pattern = next(term.pattern.to_regexp() for term in parser().terminals if term.name == "UNIT")
+    assert all(re.fullmatch(pattern, word) for word in _UNIT_WORDS)
+    # and every spelled-out unit of the grammar is offered (µm is offered as um)
+    spelled = set(re.findall(r"[a-zµ]+", pattern.split("\\b")[0])) - {"µm"}
+    assert spelled == set(_UNIT_WORDS)

@@ -76,11 +76,8 @@ class LayoutCompleter(Completer):
         match = _PARTIAL.search(before)
         partial = match.group() if match else ""
         head = join_lines(self.pending(), before[: len(before) - len(partial)])
-        # a quantity may be several words: complete the whole name from its first word on
-        words_typed = head.split()
-        quantity_start = len(words_typed) > 0 and words_typed[0] in ("expect", "report")
+        # a quantity may be several words ("focal length"): it is offered whole
         for word in sorted(candidates(head, self.names())):
             if word.startswith(partial) and word != partial:
-                yield Completion(word, start_position=-len(partial),
-                                 display_meta="quantity" if quantity_start and " " in word
-                                 else None)
+                meta = "quantity" if word in QUANTITIES or word in ALIASES else None
+                yield Completion(word, start_position=-len(partial), display_meta=meta)
