@@ -22,6 +22,10 @@ __all__ = ["Unavailable", "FirstOrder", "first_order", "RELATIVE_ZERO"]
 #: A denominator smaller than this fraction of its terms counts as zero (rounding noise).
 RELATIVE_ZERO = 1e-12
 
+#: Larger magnitudes count as overflowed: unit conversions for display (a power per nm shown in
+#: diopters is 1e9 times larger) must still stay finite.
+LARGEST = 1e290
+
 
 @dataclass(frozen=True)
 class Unavailable:
@@ -61,7 +65,7 @@ def _finite(values: dict[str, Value]) -> dict[str, Value]:
     found: dict[str, Value] = {}
     for name, value in values.items():
         if isinstance(value, (int, float)) and not isinstance(value, bool):
-            if not math.isfinite(value):
+            if not math.isfinite(value) or abs(value) > LARGEST:
                 value = Unavailable("out of range: the layout's numbers overflow double precision")
             else:
                 value = value + 0.0  # -0.0 prints as 0 and serializes the same as 0.0
