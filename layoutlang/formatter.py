@@ -100,8 +100,8 @@ def _joint(prev, token, source: str, before_prev) -> str:
         return ""
     if value == "(" and prev.type == "NAME":
         return ""  # a function call: sqrt(2)
-    if kind == "UNIT" and value == "%":
-        return ""
+    if (kind == "UNIT" and value == "%") or value in ("'", "′"):
+        return ""  # 1%, and a prime on a spectral line letter (F')
     if prev.type in ("MINUS", "PLUS") and (before_prev is None
                                              or before_prev.type not in _OPERAND_END):
         return ""  # a sign: -38.1
