@@ -312,3 +312,18 @@ def test_lagrange_invariant_equals_n_u_h_at_object_and_image() -> None:
     # object side: n u h with u = 5/150; image side: n' u' h' with h' = -1.5, u' = 5/75
     approx(r["lagrange invariant"], 3 * 5 / 150)
     approx(abs(r["image height"]) * r["numerical aperture"], 3 * 5 / 150)
+
+
+@pytest.mark.parametrize("secondary, separation, magnification", [
+    (-50, 75, 4.0),  # convex secondary (centre further along -z): upright, like a Galilean
+    (50, 125, -4.0),  # concave secondary: inverted, like a Keplerian
+])
+def test_two_mirror_beam_expanders_are_afocal(secondary, separation, magnification) -> None:
+    r = first(f"mirror p radius -200\ngap {separation}\nmirror s radius {secondary}\n"
+              "object at infinity, field angle 0.1 deg\nstop at p, diameter 40\n")
+    assert r.afocal
+    approx(r["afocal angular magnification"], magnification)
+    # the exit pupil is the primary seen in the secondary; met travelling in -z, a mirror's
+    # focal length is +R/2 in our +z convention (concave toward the light: centre upstream)
+    f2 = secondary / 2
+    approx(r["exit pupil position"], 1 / (1 / f2 - 1 / separation))
