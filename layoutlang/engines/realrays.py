@@ -29,6 +29,7 @@ normal oriented along the ray; reflection: k' = k - 2 (k·N) N.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any, Sequence
 
@@ -49,8 +50,8 @@ STATUS_WORDS = {
     TOTAL_REFLECTION: "totally internally reflected",
 }
 
-#: Rays per chunk: 12 float64 work arrays of this length stay within a typical L2 cache.
-CHUNK = 4096
+#: Rays per chunk: the block (6 rows) and its work arrays, 64 kB each, stay within L2 cache.
+CHUNK = 8192
 
 _REFRACT, _REFLECT, _IDEAL, _PLANE = 0, 1, 2, 3
 
@@ -70,6 +71,7 @@ class Step:
         clear_radius: half the clear diameter, or inf.
         space_before: index of the space the ray arrives from (0 = object space).
         sense_after: +1 or -1, the sense of travel after the step.
+        sense_before: +1 or -1, the sense of travel before it.
         boundary: the boundary's position in the layout, or -1 for the stop plane.
     """
 
@@ -82,6 +84,7 @@ class Step:
     space_before: int
     sense_after: int
     boundary: int
+    sense_before: int = 1
 
 
 @dataclass(frozen=True)
@@ -123,7 +126,7 @@ def geometry(system: System, stop_radius: float | None = None) -> Geometry:
         radius = np.inf if stop_radius is None else float(stop_radius)
         stop_step = len(steps)
         steps.append(Step("stop", base + sense * float(stop.offset), 0.0, _PLANE, 0.0, radius,
-                          after + 1, sense, -1))
+                          after + 1, sense, -1, sense))
 
     # a stop placed right at a vertex is that boundary's own aperture (on the sphere itself)
     on_boundary = None
@@ -140,51 +143,55 @@ def geometry(system: System, stop_radius: float | None = None) -> Geometry:
                 clear = min(clear, float(stop_radius))
         curvature = 0.0 if boundary.kind == IDEAL else float(boundary.curvature)
         steps.append(Step(boundary.name, vertex_z[i], curvature, action, float(boundary.power),
-                          clear, i, senses[i + 1], i))
+                          clear, i, senses[i + 1], i, senses[i]))
         if stop is not None and stop.after == i and on_boundary is None:
             add_stop()
     return Geometry(tuple(steps), tuple(vertex_z), tuple(senses), stop_step)
 
 
-@dataclass
 class Rays:
     """A set of rays: positions, unit directions, and per-ray status.
 
+    The six coordinates live in one (6, N) array so that a block of rays is a single view and
+    three-component updates are one numpy call. `x, y, z, kx, ky, kz` are row views.
+
     Attributes:
-        x, y, z: positions (1-D arrays of equal length).
-        kx, ky, kz: unit direction vectors.
+        data: rows x, y, z, kx, ky, kz.
         status: OK, MISSED, VIGNETTED or TOTAL_REFLECTION (the first thing that went wrong).
         failed_at: index into `Geometry.steps` where the status was set, -1 while OK.
     """
 
-    x: np.ndarray
-    y: np.ndarray
-    z: np.ndarray
-    kx: np.ndarray
-    ky: np.ndarray
-    kz: np.ndarray
-    status: np.ndarray
-    failed_at: np.ndarray
+    def __init__(self, data: np.ndarray, status: np.ndarray, failed_at: np.ndarray) -> None:
+        self.data = data
+        self.status = status
+        self.failed_at = failed_at
 
     @classmethod
     def start(cls, x, y, z, kx, ky, kz) -> "Rays":
         """Rays from positions and (not necessarily unit) directions; copies every array."""
-        arrays = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in (x, y, z, kx, ky, kz)))
-        x, y, z, kx, ky, kz = (np.array(a, dtype=float) for a in arrays)
-        x, y, z, kx, ky, kz = (np.atleast_1d(a) for a in (x, y, z, kx, ky, kz))
-        norm = np.sqrt(kx * kx + ky * ky + kz * kz)
-        kx /= norm
-        ky /= norm
-        kz /= norm
-        count = x.shape[0]
-        return cls(x, y, z, kx, ky, kz, np.zeros(count, np.int8), np.full(count, -1, np.int16))
+        arrays = np.broadcast_arrays(*(np.atleast_1d(np.asarray(a, dtype=float))
+                                       for a in (x, y, z, kx, ky, kz)))
+        data = np.array(arrays, dtype=float)
+        norm = np.sqrt(data[3] ** 2 + data[4] ** 2 + data[5] ** 2)
+        data[3:] /= norm
+        count = data.shape[1]
+        return cls(data, np.zeros(count, np.int8), np.full(count, -1, np.int16))
+
+    x = property(lambda self: self.data[0])
+    y = property(lambda self: self.data[1])
+    z = property(lambda self: self.data[2])
+    kx = property(lambda self: self.data[3])
+    ky = property(lambda self: self.data[4])
+    kz = property(lambda self: self.data[5])
 
     def __len__(self) -> int:
-        return self.x.shape[0]
+        return self.data.shape[1]
+
+    def __repr__(self) -> str:
+        return f"Rays({len(self)} rays, {int((self.status != OK).sum())} lost)"
 
     def copy(self) -> "Rays":
-        return Rays(*(a.copy() for a in (self.x, self.y, self.z, self.kx, self.ky, self.kz,
-                                          self.status, self.failed_at)))
+        return Rays(self.data.copy(), self.status.copy(), self.failed_at.copy())
 
     @property
     def ok(self) -> np.ndarray:
@@ -216,101 +223,119 @@ def trace(rays: Rays, geo: Geometry, indices: Sequence[Index],
     """
     steps = geo.steps if steps is None else steps
     count = len(rays)
+    if not steps or not count:
+        return rays
     for lo in range(0, count, chunk):
         hi = min(lo + chunk, count)
-        _trace_block(rays, lo, hi, steps, geo, indices)
+        _trace_block(rays, lo, hi, steps, indices)
     return rays
 
 
-def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step], geo: Geometry,
+def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                  indices: Sequence[Index]) -> None:
-    x, y, z = rays.x[lo:hi], rays.y[lo:hi], rays.z[lo:hi]
-    kx, ky, kz = rays.kx[lo:hi], rays.ky[lo:hi], rays.kz[lo:hi]
+    """One block of rays through every step. z is kept relative to the current vertex
+    (shifted between steps), so the vertex-relative position is the stored row itself."""
+    data = rays.data[:, lo:hi]
     status, failed_at = rays.status[lo:hi], rays.failed_at[lo:hi]
-    pz = np.empty_like(x)
-    t = np.empty_like(x)
-    b = np.empty_like(x)
-    w = np.empty_like(x)
-    cos = np.empty_like(x)
+    p, k = data[0:3], data[3:6]
+    x, y, z, kx, ky, kz = data
+    m = hi - lo
+    t3 = np.empty((3, m))
+    pk, w, t, b, tmp = (np.empty(m) for _ in range(5))
+    z -= steps[0].z
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         for where, step in enumerate(steps):  # `steps` is a leading part of geo.steps
+            if where:
+                z -= step.z - steps[where - 1].z
             c = step.curvature
-            np.subtract(z, step.z, out=pz)
+            s = float(step.sense_before)
+            # p·k, needed for the intersection and again (updated) for the normal
+            np.einsum("ij,ij->j", p, k, out=pk)
             if c == 0.0:
-                np.divide(pz, kz, out=t)
+                np.divide(z, kz, out=t)
                 np.negative(t, out=t)
-                _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
             else:
-                # B = kz - c (p·k),  C = c|p|² - 2 pz,  t = C / (B + sign(B) sqrt(B² - cC))
-                np.multiply(x, kx, out=b)
-                b += y * ky
-                b += pz * kz
-                b *= -c
-                b += kz
-                np.multiply(x, x, out=w)
-                w += y * y
-                w += pz * pz
+                # B = kz - c (p·k),  C = c |p|² - 2 z,  t = C / (B + s sqrt(B² - c C)) with s
+                # the sense of travel: the root on the vertex side of the sphere
+                np.einsum("ij,ij->j", p, p, out=w)
                 w *= c
-                w -= 2.0 * pz  # w holds C
+                w -= z
+                w -= z
+                np.multiply(pk, -c, out=b)
+                b += kz
                 np.multiply(b, b, out=t)
-                t -= c * w  # discriminant
-                missed = t < 0
+                np.multiply(w, c, out=tmp)
+                t -= tmp
                 np.sqrt(t, out=t)
-                np.copysign(t, b, out=t)
+                if s < 0:
+                    np.negative(t, out=t)
                 t += b
                 np.divide(w, t, out=t)
-                missed |= ~np.isfinite(t)
-                _flag(status, failed_at, missed, MISSED, where)
-            x += t * kx
-            y += t * ky
-            z += t * kz
-            if step.clear_radius != np.inf:
+                if step.action != _REFRACT and not math.isfinite(t.sum()):
+                    _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
+            if c == 0.0 and not math.isfinite(t.sum()):
+                _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
+            np.multiply(kx, t, out=tmp)
+            x += tmp
+            np.multiply(ky, t, out=tmp)
+            y += tmp
+            np.multiply(kz, t, out=tmp)
+            z += tmp
+            if step.clear_radius != math.inf:
                 np.multiply(x, x, out=w)
                 w += y * y
-                _flag(status, failed_at, w > step.clear_radius ** 2 * (1 + 1e-12), VIGNETTED,
-                      where)
+                limit = step.clear_radius ** 2 * (1 + 1e-12)
+                if w.max() > limit:
+                    _flag(status, failed_at, w > limit, VIGNETTED, where)
             if step.action == _PLANE:
                 continue
             if step.action == _IDEAL:
-                _ideal_lens(x, y, kx, ky, kz, step, _index_chunk(indices[step.space_before], lo, hi))
+                _ideal_lens(x, y, kx, ky, kz, step)
                 continue
-            # unit normal (-c x, -c y, 1 - c (z - z_vertex)) at the intersection
-            np.subtract(z, step.z, out=pz)
-            pz *= -c
-            pz += 1.0  # nz
-            np.multiply(kx, x, out=cos)
-            cos += ky * y
-            cos *= -c
-            cos += kz * pz  # cos = k·N (N pointing to +z at the vertex)
+            # cos = k·N with the unit normal N = (-c x, -c y, 1 - c z) (+z at the vertex);
+            # after the move p·k grew by t (k is a unit vector)
+            pk += t
+            pk *= -c
+            pk += kz
+            cos = pk
             if step.action == _REFLECT:
+                # k' = k - 2 cos N = k + 2 c cos p - 2 cos e_z
+                np.multiply(cos, 2.0 * c, out=w)
+                for pi, ki in ((x, kx), (y, ky), (z, kz)):
+                    np.multiply(pi, w, out=tmp)
+                    ki += tmp
                 cos *= 2.0
-                kx += cos * (c * x)
-                ky += cos * (c * y)
-                kz -= cos * pz
+                kz -= cos
                 continue
+            # the ray meets the surface from its usual side when s·cos > 0
+            if (cos.min() <= 0.0) if s > 0 else (cos.max() >= 0.0):
+                _flag(status, failed_at, s * cos <= 0.0, MISSED, where)
             n_before = _index_chunk(indices[step.space_before], lo, hi)
             n_after = _index_chunk(indices[step.space_before + 1], lo, hi)
             mu = n_before / n_after
-            # orient N along the ray: sign s = sign(cos); then use |cos|
-            np.sign(cos, out=b)
-            np.abs(cos, out=cos)
+            # g = sqrt(1 - mu²(1 - cos²I)) - mu cos I, cos I = s cos; k' = mu k + g s N
             np.multiply(cos, cos, out=w)
-            np.subtract(1.0, w, out=w)
-            w *= -(mu * mu)
-            w += 1.0  # 1 - μ²(1 - cos²I)
-            _flag(status, failed_at, w < 0, TOTAL_REFLECTION, where)
+            w *= mu * mu
+            w += 1.0 - mu * mu
             np.sqrt(w, out=w)
-            w -= mu * cos  # g = sqrt(...) - μ cos I
-            w *= b  # g·s: N oriented along the ray
-            kx *= mu
-            ky *= mu
-            kz *= mu
-            kx -= w * (c * x)
-            ky -= w * (c * y)
-            kz += w * pz
+            np.multiply(cos, mu * s, out=tmp)
+            w -= tmp  # g
+            if not math.isfinite(w.sum()):  # a ray that missed (NaN from t) or cannot refract
+                _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
+                _flag(status, failed_at, ~np.isfinite(w), TOTAL_REFLECTION, where)
+            np.multiply(w, -c * s, out=b)
+            for pi, ki in ((x, kx), (y, ky), (z, kz)):  # k = mu k - c s g p
+                ki *= mu
+                np.multiply(pi, b, out=tmp)
+                ki += tmp
+            if s > 0:
+                kz += w
+            else:
+                kz -= w
+        z += steps[-1].z
 
 
-def _ideal_lens(x, y, kx, ky, kz, step: Step, index: Index) -> None:
+def _ideal_lens(x, y, kx, ky, kz, step: Step) -> None:
     """Tangent-form ideal lens: slopes along the sense of travel change by -y·power."""
     sense = np.sign(kz)
     along = np.abs(kz)
