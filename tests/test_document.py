@@ -86,3 +86,32 @@ def test_latex_document_and_escaping(script: Path, tmp_path: Path) -> None:
     assert r"75 $\pm$ 0.01" in text
     assert text.count(r"\begin{longtable}") == text.count(r"\end{longtable}") == 3
     assert tex_escape("a_b 50% #1 & {x}") == r"a\_b 50\% \#1 \& \{x\}"
+
+
+def test_derived_equations_are_in_every_format(tmp_path: Path) -> None:
+    render = pytest.importorskip("layoutlang.symbolic.render")
+    if not hasattr(render, "equation_rows"):
+        pytest.skip("the symbolic engine has no report rows here")
+    # One refracting boundary, n1/s + n2/s' = (n2 - n1)/R (Hecht 2017, Optics, 5th ed.,
+    # eq. 5.8): n1 = 1, n2 = 1.5, R = 20, s = 100 → s' = 100.
+    path = tmp_path / "boundary.lay"
+    path.write_text("""layout "One boundary"
+symbols n1 n2 R a positive
+nominal n1 = 1, n2 = 1.5, R = 20, a = 100
+medium outside index n1
+medium inside index n2
+object a before, height 1
+start in outside
+surface front radius R into inside
+stop at front, diameter 5
+image at focus
+derive image distance
+expect image distance = 100 ± 0.001
+""", encoding="utf-8")
+    md = render_document(str(path), "md", str(tmp_path / "r.md"))
+    assert md.all_hold
+    assert "## Derived equations" in md.text and r"\frac{R a n_{2}}" in md.text
+    latex = render_document(str(path), "latex").text
+    assert r"\subsection*{Derived equations}" in latex and r"\begin{equation*}" in latex
+    html = render_document(str(path), "html").text
+    assert "<h2>Derived equations</h2>" in html

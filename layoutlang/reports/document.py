@@ -114,22 +114,15 @@ def setting_lines(system: System) -> list[str]:
 
 
 def _equations(program: Program) -> list[tuple[str, str, str]]:
-    """(quantity, plain text, LaTeX) of each derived equation, when the script derives any
-    (the symbolic engine is imported only then)."""
-    derived = getattr(program, "derivations", None) or ()
-    found = []
-    for item in derived:
-        name = str(getattr(item, "name", getattr(item, "quantity", "")))
-        expression = getattr(item, "expression", getattr(item, "expr", None))
-        if expression is None:
-            continue
-        try:
-            import sympy
-
-            found.append((name, str(expression), sympy.latex(expression)))
-        except Exception:  # a derivation the printer cannot render: show its text only
-            found.append((name, str(expression), ""))
-    return found
+    """(quantity, plain text, LaTeX) of each closed form the script derives; the symbolic
+    engine (and sympy) is imported only for a script that declares symbols."""
+    if getattr(program, "symbolic", None) is None:
+        return []
+    try:
+        from ..symbolic.render import equation_rows
+    except ImportError:  # an install without the symbolic engine: no equations section
+        return []
+    return list(equation_rows(program))
 
 
 def gather(program: Program, results: FirstOrder, checked: list[CheckResult]) -> Sections:
@@ -316,6 +309,10 @@ def render_document(path: str, doc_format: str, output: str | None = None) -> Do
     from .drawing import drawing_bytes
 
     program = load_file(path)
+    if getattr(program, "symbolic", None) is not None:
+        from ..symbolic.program import require_numeric
+
+        require_numeric(program)  # the tables and the drawing need a number for every symbol
     results = first_order(program.system)
     sections = gather(program, results, check_program(program, results))
     cautions = tuple(getattr(program, "hazards", ()) or ())
