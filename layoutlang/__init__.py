@@ -6,6 +6,7 @@ The public API is a handful of thin functions over the same core the command lin
     load(path) / loads(text) -> Program (the System plus the script's expectations)
     evaluate(system)       -> FirstOrder (every first-order property)
     check(program)         -> list of CheckResult (one per expectation)
+    derive(program, name)  -> the closed form of a quantity of a script with symbols (sympy)
     format_script(text)    -> the canonical layout of a script
     draw(system, path)     -> writes an svg/png/pdf cross-section (matplotlib)
     report(path, fmt)      -> a md/html/latex design report as text
@@ -17,8 +18,8 @@ from __future__ import annotations
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "parse", "load", "loads", "evaluate", "check", "format_script",
-           "draw", "report"]
+__all__ = ["__version__", "parse", "load", "loads", "evaluate", "check", "derive",
+           "format_script", "draw", "report"]
 
 
 def parse(text: str, file: str = "<script>"):
@@ -57,6 +58,32 @@ def check(program):
     from .checks import check_program
 
     return check_program(program)
+
+
+def derive(program, quantity: str):
+    """The closed form (a sympy expression) of a first-order quantity of a script that declares
+    symbols; `quantity` as in the script ('image distance', 'focal length', an alias, or
+    'conjugate equation', which gives a sympy Eq).
+
+    Raises:
+        LayoutValueError: the script has no symbols, or the quantity has no closed form here
+            (it does not exist for this layout, or is too large to print).
+    """
+    from .errors import LayoutValueError
+    from .quantities import lookup
+
+    part = getattr(program, "symbolic", None)
+    if part is None:
+        raise LayoutValueError("derive needs a script that declares symbols",
+                               hint="add a line such as 'symbols R n positive'")
+    from .symbolic.derive import derive as _derive
+
+    info = lookup(quantity)
+    name = info.name if info is not None else quantity
+    result = _derive(part, name)
+    if result.unavailable or result.too_large:
+        raise LayoutValueError(f"{name}: {result.unavailable or result.too_large}")
+    return result.equation if result.equation is not None else result.expr
 
 
 def format_script(text: str, file: str = "<script>") -> str:
