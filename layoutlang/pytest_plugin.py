@@ -69,6 +69,10 @@ class LayoutScript(pytest.File):
 
         try:
             program = load_file(self.path)
+            if getattr(program, "symbolic", None) is not None:
+                from .symbolic.program import require_numeric
+
+                require_numeric(program)  # checked at the nominal values, as `check` does
         except LayoutError as error:
             yield ScriptErrorItem.from_parent(self, name="script", error=error)
             return

@@ -103,3 +103,18 @@ def test_importing_the_plugin_is_cheap() -> None:
             "print(sorted(m for m in ('lark', 'numpy', 'sympy', 'matplotlib') if m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
+
+
+def test_symbolic_script_without_nominal_values_is_one_failing_item(
+        pytester: pytest.Pytester) -> None:
+    pytester.makefile(".lay", sym="""symbols R positive
+medium glass index 1.5
+object 100 before
+start in air
+surface front radius R into glass
+image at focus
+expect image distance > 0
+""")
+    result = pytester.runpytest("sym.lay")
+    result.assert_outcomes(failed=1)
+    result.stdout.fnmatch_lines(["*no nominal value for R*"])
