@@ -412,9 +412,12 @@ def analyse(system: System, settings: RaySettings = RaySettings(),
     else:
         dof = primary.wavelength / (na * na)
         airy = 0.61 * primary.wavelength / na
+    obj = system.object
+    no_field = (obj.field_angle == 0) if obj.at_infinity else (obj.height == 0)
+    fields = (0.0,) if no_field else settings.fields  # every fraction of a zero field is 0
     margins = tuple(marginal(primary, settings.pupils))
-    chiefs = tuple(chief(primary, settings.fields))
-    spots = tuple(spot(s, f, settings.grid) for s in setups for f in settings.fields)
+    chiefs = tuple(chief(primary, fields))
+    spots = tuple(spot(s, f, settings.grid) for s in setups for f in fields)
     best = best_focus_shift(primary, settings.grid)
     units = system.units
     focus_verdict = _focus_verdict(margins, dof, settings.tolerance, units)

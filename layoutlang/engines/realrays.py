@@ -285,7 +285,7 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                 np.multiply(x, x, out=w)
                 w += y * y
                 limit = step.clear_radius ** 2 * (1 + 1e-12)
-                if w.max() > limit:
+                if np.fmax.reduce(w) > limit:  # fmax: a NaN (lost ray) must not hide the rest
                     _flag(status, failed_at, w > limit, VIGNETTED, where)
             if step.action == _PLANE:
                 continue
@@ -308,7 +308,7 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                 kz -= cos
                 continue
             # the ray meets the surface from its usual side when s·cos > 0
-            if (cos.min() <= 0.0) if s > 0 else (cos.max() >= 0.0):
+            if (np.fmin.reduce(cos) <= 0.0) if s > 0 else (np.fmax.reduce(cos) >= 0.0):
                 _flag(status, failed_at, s * cos <= 0.0, MISSED, where)
             n_before = _index_chunk(indices[step.space_before], lo, hi)
             n_after = _index_chunk(indices[step.space_before + 1], lo, hi)
