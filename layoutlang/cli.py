@@ -109,6 +109,8 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None) -> int
     for path in paths:
         try:
             program, _, checked = _evaluate(path)
+            for warning in getattr(program, "warnings", ()):  # e.g. outside a material's range
+                print(warning, file=sys.stderr)
         except LayoutError as error:
             status = EXIT_ERROR
             outcomes.append((path, [], str(error)))

@@ -285,7 +285,9 @@ class MaterialStatements:
                 index = float(relative_index(model, system.to_micrometres(primary), environment))
             except DispersionError as error:
                 raise LayoutValueError(f"medium {medium.name!r}: {error}", span) from None
-            warning = range_warning(medium.name, model, waves_um)
+            # air in a layout in standard air is exactly 1: its own range does not matter
+            in_air = where is None and environment == STANDARD_AIR
+            warning = None if in_air else range_warning(medium.name, model, waves_um)
             if warning:
                 state["warnings"].append(_located(span, warning))
             media.append(replace(medium, index=index, model=model))
