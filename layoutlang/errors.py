@@ -32,7 +32,7 @@ class Span:
 
     def caret(self) -> str:
         """The offending line with carets under the span."""
-        text = self.line_text.rstrip("\n")
+        text = self.line_text.rstrip("\r\n")  # scripts saved with CRLF line ends
         width = max(1, min(self.end_column, len(text) + 1) - self.column)
         pad = "".join(ch if ch == "\t" else " " for ch in text[: self.column - 1])
         return f"    {text}\n    {pad}{'^' * width}"

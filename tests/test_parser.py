@@ -236,3 +236,15 @@ def test_keyword_words_lists_the_statement_words() -> None:
     words = keyword_words()
     for word in ("surface", "mirror", "lens", "gap", "stop", "image", "expect", "within"):
         assert word in words
+
+
+def test_caret_lines_of_crlf_scripts_carry_no_carriage_return() -> None:
+    error = syntax_error("start in air\r\ngap 5 6\r\n")
+    assert (error.line, error.column) == (2, 7)
+    assert "\r" not in str(error)
+    assert "    gap 5 6\n          ^" in str(error)
+
+
+def test_caret_keeps_tabs_so_it_lines_up() -> None:
+    error = syntax_error("\tgap 5 6\n")
+    assert "    \tgap 5 6\n    \t      ^" in str(error)
