@@ -71,3 +71,30 @@ def test_labels_name_every_surface() -> None:
     fig = figure(loads(DOUBLET).system)
     texts = {t.get_text() for ax in fig.axes for t in ax.texts}
     assert {"front", "joint", "back", "stop", "image"} <= texts
+
+
+def test_rays_of_each_wavelength_end_on_the_one_image_plane() -> None:
+    from layoutlang.reports.drawing import figure
+
+    text = """wavelengths 587.6 nm primary, 486.1 nm, 656.3 nm
+medium flint glass code 755276
+object at infinity, field angle 4 deg
+start in air
+surface front radius 30 into flint
+gap 6
+surface back radius 200 into air
+stop at front, diameter 24
+image at focus
+"""
+    system = loads(text).system
+    if not any(getattr(m, "model", None) is not None for m in system.media):
+        pytest.skip("no dispersion models in this tree")
+    fig = figure(system)
+    legend = [t.get_text() for t in fig.legends[0].get_texts()]
+    assert legend[:3] == ["587.6 nm", "486.1 nm", "656.3 nm"]
+    ax = fig.axes[0]
+    colours = {h.get_color() for h in fig.legends[0].legend_handles[:3]}
+    rays = [line for line in ax.lines if line.get_color() in colours]
+    assert len(rays) == 9  # marginal above and below, chief: three colours
+    ends = {round(float(line.get_xdata()[-1]), 9) for line in rays}
+    assert len(ends) == 1  # every colour stops on the primary's image plane

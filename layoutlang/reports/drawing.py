@@ -66,12 +66,22 @@ def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]
         if waves:
             label = ", ".join(f"{_nm(system, w.value):g}" for w in waves) + " nm"
         return [(label, STYLE["ray"], section)]
+    from dataclasses import replace
+
+    from ..engines.firstorder import Unavailable, first_order
+    from ..system import ImageSpec
+
     sets = []
     primary = system.primary_wavelength
     waves = [primary] + [w for w in waves if w is not primary]
+    # every colour ends on the one image plane (the primary's), where the sensor is
+    plane = first_order(at(primary.value))["image plane distance"]
     for wave in waves:
         nm = _nm(system, wave.value)
-        sets.append((f"{nm:g} nm", _wavelength_colour(nm), cross_section(at(wave.value), exact=exact)))
+        coloured = at(wave.value)
+        if not isinstance(plane, Unavailable):
+            coloured = replace(coloured, image=ImageSpec(float(plane)))
+        sets.append((f"{nm:g} nm", _wavelength_colour(nm), cross_section(coloured, exact=exact)))
     return sets
 
 
