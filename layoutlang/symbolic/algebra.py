@@ -61,7 +61,8 @@ class RingContext:
     def atoms_of(self, poly: Any) -> tuple[int, dict[Any, int]]:
         """Split a nonzero polynomial into sign × integer content × atoms (normalised so equal
         factors get equal keys)."""
-        cached = self._atom_cache.get(poly)
+        small = len(poly) <= FACTOR_ATOM_TERMS
+        cached = self._atom_cache.get(poly) if small else None
         if cached is not None:
             return cached
         ring = self.ring
@@ -88,7 +89,8 @@ class RingContext:
         if coefficient != 1:
             atoms[ring(coefficient)] = atoms.get(ring(coefficient), 0) + 1
         result = (sign, atoms)
-        self._atom_cache[poly] = result
+        if small:
+            self._atom_cache[poly] = result
         return result
 
 
@@ -127,12 +129,13 @@ class Ratio:
 
     def _scaled(self, target: dict[Any, int]) -> Any:
         """The numerator multiplied up to the denominator `target` (a multiple of ours)."""
-        num = self.num
+        factor = None
         for atom, exponent in target.items():
             missing = exponent - self.den.get(atom, 0)
             if missing:
-                num = num * atom**missing if missing > 1 else num * atom
-        return num
+                power = atom**missing if missing > 1 else atom
+                factor = power if factor is None else _multiply(factor, power)
+        return self.num if factor is None else _multiply(self.num, factor)
 
     # --- arithmetic -------------------------------------------------------------------------
     def __add__(self, other: Any) -> "Ratio":
@@ -175,7 +178,8 @@ class Ratio:
             return NotImplemented
         if not self.num or not other.num:
             return Ratio(self.ctx, self.ctx.ring.zero)
-        return Ratio(self.ctx, self.ctx.check(self.num * other.num), _merge(self.den, other.den))
+        return Ratio(self.ctx, self.ctx.check(_multiply(self.num, other.num)),
+                     _merge(self.den, other.den))
 
     __rmul__ = __mul__
 
@@ -185,7 +189,7 @@ class Ratio:
         sign, atoms = self.ctx.atoms_of(self.num)
         num = self.ctx.ring.one
         for atom, exponent in self.den.items():
-            num = num * atom**exponent
+            num = _multiply(num, atom**exponent)
         return Ratio(self.ctx, num if sign > 0 else -num, atoms)
 
     def __truediv__(self, other: Any) -> "Ratio":
@@ -315,11 +319,27 @@ class Ratio:
                 return value
             return _as_expr(poly, meaning)
 
-        numerator = expr_of(self.num, factor)
+        num, den = self._fewest_minus_signs()
+        numerator = expr_of(num, factor)
         denominator = sp.Integer(1)
-        for atom in sorted(self.den, key=lambda a: (len(a), str(a))):
-            denominator *= sp.Pow(expr_of(atom, factor), self.den[atom])
+        for atom in sorted(den, key=lambda a: (len(a), str(a))):
+            denominator *= sp.Pow(expr_of(atom, factor), den[atom])
         return numerator / denominator
+
+    def _fewest_minus_signs(self) -> tuple[Any, dict[Any, int]]:
+        """The same ratio with the sign moved between the numerator and one odd-power
+        denominator factor where that leaves fewer minus signs to read."""
+        def minus(poly: Any) -> int:
+            return sum(1 for c in poly.itercoeffs() if c < 0)
+
+        num, den = self.num, dict(self.den)
+        for atom in sorted(den, key=lambda a: (len(a), str(a))):
+            if den[atom] % 2 and len(atom) > 1 and minus(-atom) + minus(-num) < \
+                    minus(atom) + minus(num):
+                exponent = den.pop(atom)
+                den[-atom] = exponent
+                num = -num
+        return num, den
 
     def evaluate(self, values: dict[Any, Any]) -> Any:
         """The value with every generator replaced (Fractions give an exact Fraction; any
@@ -343,6 +363,15 @@ class Ratio:
                 result = result - Ratio(ctx, ctx.check(self.num * slope) * exponent,
                                         _merge(self.den, {atom: 1}))
         return result
+
+
+def _multiply(p: Any, q: Any) -> Any:
+    """p·q, by shifting exponents when one side is a single term (most products here)."""
+    if len(q) == 1:
+        return p.mul_term(next(iter(q.items())))
+    if len(p) == 1:
+        return q.mul_term(next(iter(p.items())))
+    return p * q
 
 
 def _evaluate_poly(poly: Any, point: list[Any]) -> Any:

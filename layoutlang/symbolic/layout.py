@@ -17,7 +17,7 @@ from ..engines import paraxial
 from ..engines.firstorder import Unavailable
 from ..engines.paraxial import TRANSFER, Step, formulas
 from ..system import Boundary, Medium, ObjectSpec, StopSpec, System
-from .algebra import Ratio, RingContext
+from .algebra import Ratio, RingContext, TooLarge
 from .convert import make_context, to_ratio
 
 __all__ = ["SymbolicLayout", "DERIVABLE"]
@@ -93,8 +93,12 @@ class SymbolicLayout:
         if "abcd" not in self._cache:
             steps = paraxial.steps_of(self.ring_system)
             self._cache["steps"] = steps
-            self._cache["abcd"] = paraxial.matrix(steps)
+            self._cache["abcd"] = self._as_ratios(paraxial.matrix(steps))
         return self._cache["abcd"]
+
+    def _as_ratios(self, values: tuple) -> tuple:
+        """Ratios for every entry (an empty step list leaves plain 1 and 0)."""
+        return tuple(v if isinstance(v, Ratio) else to_ratio(self.ctx, v) for v in values)
 
     @property
     def n0(self) -> Ratio:
@@ -158,8 +162,14 @@ class SymbolicLayout:
     # --- quantities -------------------------------------------------------------------------
     def quantity(self, name: str) -> Ratio | Unavailable:
         """One first-order quantity (a name of `DERIVABLE`)."""
+        if "too large" in self._cache:  # every quantity shares the trace that overflowed
+            raise self._cache["too large"]
         if name not in self._cache:
-            self._cache[name] = self._compute(name)
+            try:
+                self._cache[name] = self._compute(name)
+            except TooLarge as error:
+                self._cache["too large"] = error
+                raise
         return self._cache[name]
 
     def _compute(self, name: str) -> Ratio | Unavailable:
@@ -197,10 +207,27 @@ class SymbolicLayout:
         distance = self.ring_system.object.distance
         return None if distance is None else distance / self.n0
 
+    def _object_ray(self) -> tuple[Ratio, Ratio]:
+        """Height and reduced angle at the last vertex of the ray from the axial object point
+        (the second column of the object-to-last-vertex matrix): half the work of the whole
+        matrix, which is what makes the image distance of a big layout fast."""
+        if "object ray" not in self._cache:
+            steps = [Step(TRANSFER, self._object_tau())] + paraxial.steps_of(self.ring_system)
+            zero, one = to_ratio(self.ctx, 0), to_ratio(self.ctx, 1)
+            self._cache["object ray"] = paraxial.trace(zero, one, steps)
+        return self._cache["object ray"]
+
     def _conjugate(self, name: str) -> Ratio | Unavailable:
-        a, b, c, d = self._matrix()
         nk, n0 = self.nk, self.n0
         tau = self._object_tau()
+        if tau is not None:
+            # with the object transfer folded into the steps the object sits at the first
+            # step (object_tau = 0), so the formulas need only the object ray's column
+            y, nu = self._object_ray()
+            zero = to_ratio(self.ctx, 0)
+            a, b, c, d, tau = zero, y, zero, nu, zero
+        else:
+            a, b, c, d = self._matrix()
         if tau is None:
             if name in ("magnification", "longitudinal magnification", "angular magnification"):
                 return Unavailable("none: the object is at infinity")
@@ -250,8 +277,8 @@ class SymbolicLayout:
         if s.stop is None:
             return Unavailable("none: the layout has no stop")
         split = paraxial.split_at_stop(s)
-        a1, b1, c1, d1 = paraxial.matrix(split.front)
-        a2, b2, c2, d2 = paraxial.matrix(split.back)
+        a1, b1, c1, d1 = self._as_ratios(paraxial.matrix(split.front))
+        a2, b2, c2, d2 = self._as_ratios(paraxial.matrix(split.back))
         n0, nk = self.n0, self.nk
         if name == "exit pupil position":
             if d2.is_zero():
@@ -315,10 +342,10 @@ class SymbolicLayout:
                     return Unavailable("none: the entrance pupil is at infinity")
                 entrance = stop.size / (a1 * self._sign(a1, "entrance pupil"))
             else:
-                focal = self.quantity("focal length")
+                focal = self.quantity("effective focal length")  # as firstorder.py
                 if isinstance(focal, Unavailable):
                     return Unavailable("none: an afocal layout has no f-number to size the stop")
-                entrance = focal * self._sign(focal, "focal length") / stop.size
+                entrance = focal * self._sign(focal, "effective focal length") / stop.size
             y_stop = a1 * entrance / 2
             return entrance / 2, zero, 2 * y_stop * self._sign(y_stop, "stop height")
         object_steps = [Step(TRANSFER, self._object_tau())]

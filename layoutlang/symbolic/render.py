@@ -59,8 +59,15 @@ def carry_out(program: Any) -> Outcome:
 def _plain(expr: Any) -> str:
     import sympy as sp
 
-    order = "none" if isinstance(expr, sp.Equality) else None
-    return sp.sstr(expr, order=order).replace("**", "^")
+    if isinstance(expr, sp.Equality):
+        return f"{_plain_side(expr.lhs)} = {_plain_side(expr.rhs)}"
+    return sp.sstr(expr).replace("**", "^")
+
+
+def _plain_side(expr: Any) -> str:
+    import sympy as sp
+
+    return sp.sstr(expr, order="none").replace("**", "^")
 
 
 def _tex(expr: Any) -> str:
