@@ -151,3 +151,14 @@ def test_check_command_exit_status_follows_the_ray_expectations(tmp_path, capsys
     assert main(["check", str(good)]) == 0
     assert main(["check", str(bad)]) == 1
     assert "rms spot radius at field 1" in capsys.readouterr().out
+
+
+def test_json_output_carries_the_ray_sections_without_nan(tmp_path, capsys):
+    import json
+
+    path = tmp_path / "rays.lay"
+    path.write_text(LENS + "report exact rays\nreport seidel sums\n", encoding="utf-8")
+    assert main(["run", "--json", str(path)]) == 0
+    data = json.loads(capsys.readouterr().out)  # strict JSON: NaN would not load as a number
+    assert data["rays"]["exact_rays"]["marginal"][0]["pupil"] == 1.0
+    assert data["rays"]["seidel"]["petzval_radius"] == pytest.approx(-150.0, rel=1e-9)

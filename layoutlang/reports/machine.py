@@ -64,7 +64,17 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
         "notes": list(results.notes),
         "expectations": _checks(checked),
         **_colour(program, results),
+        **_rays(program, results),
     }
+
+
+def _rays(program: Program, results: FirstOrder) -> dict:
+    """The exact-ray and Seidel sections, when the script asks for them (reports/rays.py)."""
+    if not getattr(program, "ray_reports", ()):
+        return {}
+    from .rays import rays_json
+
+    return {"rays": rays_json(program, results)}
 
 
 def _colour(program: Program, results: FirstOrder) -> dict:

@@ -13,7 +13,7 @@ from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, FIELD_DEFAULTS
 from ..testing import format_number
 
-__all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines"]
+__all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines", "rays_json"]
 
 
 def _table(rows: list[list[str]], indent: str = "    ") -> list[str]:
@@ -177,3 +177,58 @@ def ray_sections(program: Program, results: FirstOrder) -> list[str]:
     if "seidel sums" in program.ray_reports:
         lines += seidel_lines(program, results)
     return lines
+
+
+def _json_value(value):
+    if isinstance(value, Unavailable):
+        return {"value": None, "why": value.reason}
+    return float(f"{value:.12g}")
+
+
+def rays_json(program: Program, results: FirstOrder) -> dict:
+    """The requested exact-ray and Seidel sections as plain data (12 significant digits;
+    a value that does not exist is {"value": null, "why": ...})."""
+    from ..engines.rayquantities import SEIDEL_FIELDS, ray_quantities
+
+    rays = ray_quantities(program.system, program.rays, results)
+    found: dict = {}
+    if "exact rays" in program.ray_reports:
+        a = rays.analysis
+        if a.unavailable is not None:
+            found["exact_rays"] = {"why": a.unavailable.reason}
+        else:
+            v = _json_value
+            found["exact_rays"] = {
+                "wavelength": v(a.wavelength),
+                "numerical_aperture": v(a.numerical_aperture),
+                "depth_of_focus": v(a.depth_of_focus),
+                "marginal": [{"pupil": r.pupil, "real_focus": v(r.real_focus),
+                              "paraxial_focus": v(r.paraxial_focus),
+                              "longitudinal": v(r.longitudinal), "transverse": v(r.transverse),
+                              "lost": r.lost} for r in a.marginal],
+                "focus_verdict": a.focus_verdict,
+                "chief": [{"field": r.field, "real_height": v(r.real_height),
+                           "paraxial_height": v(r.paraxial_height),
+                           "distortion_percent": v(r.distortion * 100)
+                           if not isinstance(r.distortion, Unavailable) else v(r.distortion),
+                           "lost": r.lost} for r in a.chief],
+                "height_verdict": a.height_verdict,
+                "spots": [{"field": r.field, "wavelength": v(r.wavelength), "rays": r.rays,
+                           "reaching": r.used, "rms_radius": v(r.rms_radius),
+                           "largest_radius": v(r.max_radius), "lost": r.lost} for r in a.spots],
+                "best_focus_shift": v(a.best_focus_shift),
+            }
+    if "seidel sums" in program.ray_reports:
+        sums = rays.seidel
+        if isinstance(sums, Unavailable):
+            found["seidel"] = {"why": sums.reason}
+        else:
+            names = list(SEIDEL_FIELDS.values())
+            found["seidel"] = {
+                "surfaces": [{"name": s.name, **{n: _json_value(getattr(s, n)) for n in names}}
+                             for s in sums.surfaces],
+                "total": {n: _json_value(sums.total(n)) for n in names},
+                "petzval_sum": _json_value(sums.petzval_sum),
+                "petzval_radius": _json_value(sums.petzval_radius),
+            }
+    return found
