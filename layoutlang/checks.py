@@ -61,6 +61,9 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
                 label = f"{label} at field {expectation.field:g}"
             if expectation.scale:
                 label = f"size of the {label} in depths of focus"
+        elif program.symbolic is not None and \
+                expectation.quantity in program.symbolic.expected_sensitivities:
+            value = program.symbolic.expected_sensitivities[expectation.quantity]  # symbolic/
         else:
             value = results[expectation.quantity]
         actual = to_display(value, kind, units)

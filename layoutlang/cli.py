@@ -41,6 +41,9 @@ def _parser() -> argparse.ArgumentParser:
     kept = repl.add_mutually_exclusive_group()
     kept.add_argument("--history", metavar="PATH", help="where typed lines are kept")
     kept.add_argument("--no-history", action="store_true", help="keep typed lines in memory only")
+    from .symbolic.command import add_command as add_derive  # no sympy until it runs
+
+    add_derive(commands)
     return parser
 
 
@@ -51,6 +54,10 @@ def main(argv: Sequence[str] | None = None) -> int:
             return _run(args.file, args.json)
         if args.command == "repl":
             return _repl(args)
+        if args.command == "derive":
+            from .symbolic.command import run as derive
+
+            return derive(args)
         if args.command != "check":
             from .workflow import run_command
 
@@ -78,6 +85,10 @@ def _evaluate(path: str):
     from .interpret.interpreter import load_file
 
     program = load_file(path)
+    if program.symbolic is not None:
+        from .symbolic.program import require_numeric
+
+        require_numeric(program)  # a symbolic script is checked at its nominal values
     results = first_order(program.system)
     return program, results, check_program(program, results)
 

@@ -24,6 +24,7 @@ from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
+from .symbolstatements import SymbolicStatements
 from ..engines.raysettings import RaySettings
 
 __all__ = ["Expectation", "Program", "interpret", "load_file", "PREDEFINED_MEDIA"]
@@ -63,6 +64,7 @@ class Program:
     ray_reports: tuple[str, ...] = ()  # 'exact rays', 'seidel sums', in script order
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
+    symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
 
     def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
         from ..notebook import program_html
@@ -85,7 +87,7 @@ def interpret(script: t.Script, base: Path | None = None) -> Program:
     return _Interpreter(script, base or Path.cwd()).run()
 
 
-class _Interpreter(RayStatements, MaterialStatements):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -169,7 +171,11 @@ class _Interpreter(RayStatements, MaterialStatements):
                               self.span(node), expected="a power such as 10 diopters")
 
     def positive(self, value: Any, node: t.Node, what: str, allow_zero: bool = False) -> Any:
-        if value < 0 or (value == 0 and not allow_zero):
+        try:
+            bad = bool(value < 0 or (value == 0 and not allow_zero))
+        except TypeError:  # a symbolic value of unknown sign: checked at its nominal values
+            return value
+        if bad:
             bound = "zero or more" if allow_zero else "more than zero"
             raise LayoutValueError(f"{what} must be {bound}", self.span(node))
         return value
@@ -334,7 +340,7 @@ class _Interpreter(RayStatements, MaterialStatements):
     def invertible(self, value: Any, node: t.Node, what: str) -> Any:
         """`value` unless it is so close to zero that its reciprocal overflows (reports print
         both radius and curvature, so both must be finite)."""
-        if value != 0 and not math.isfinite(1 / value):
+        if value != 0 and isinstance(value, (int, float)) and not math.isfinite(1 / value):
             raise LayoutValueError(f"{what} this close to zero cannot be computed with",
                                    self.span(node))
         return value
@@ -482,10 +488,10 @@ class _Interpreter(RayStatements, MaterialStatements):
         for node, (self.file, self.lines) in self.expect_nodes:
             expectations.append(self.expectation(node))
         expectations = tuple(expectations)
-        return Program(self.script.file, system, expectations, tuple(self.reports),
-                       tuple(self.hazards), dict(self.names), rays=rays,
-                       ray_reports=self.ray_reports(),
-            colour=self.colour_requests(system), warnings=self.material_warnings())
+        return self.finish_symbolic(Program(
+            self.script.file, system, expectations, tuple(self.reports), tuple(self.hazards),
+            dict(self.names), rays=rays, ray_reports=self.ray_reports(),
+            colour=self.colour_requests(system), warnings=self.material_warnings()))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -563,7 +569,7 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, MaterialStatements, _Interpreter)
+    for cls in (RayStatements, SymbolicStatements, MaterialStatements, _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
 }
