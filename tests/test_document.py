@@ -86,6 +86,7 @@ def test_latex_document_and_escaping(script: Path, tmp_path: Path) -> None:
     assert r"75 $\pm$ 0.01" in text
     assert text.count(r"\begin{longtable}") == text.count(r"\end{longtable}") == 3
     assert tex_escape("a_b 50% #1 & {x}") == r"a\_b 50\% \#1 \& \{x\}"
+    assert tex_escape("5° → ∂") == r"5$^\circ$ $\to$ [U+2202]"
 
 
 def test_derived_equations_are_in_every_format(tmp_path: Path) -> None:
@@ -115,3 +116,17 @@ expect image distance = 100 ± 0.001
     assert r"\subsection*{Derived equations}" in latex and r"\begin{equation*}" in latex
     html = render_document(str(path), "html").text
     assert "<h2>Derived equations</h2>" in html
+
+
+def test_latex_compiles_where_a_tex_system_is_installed(script: Path, tmp_path: Path) -> None:
+    import shutil
+    import subprocess
+
+    if shutil.which("pdflatex") is None:
+        pytest.skip("no pdflatex on this machine")
+    out = tmp_path / "report.tex"
+    out.write_text(render_document(str(script), "latex", str(out)).text, encoding="utf-8")
+    run = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", out.name],
+                         cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert run.returncode == 0, run.stdout[-2000:]
+    assert (tmp_path / "report.pdf").read_bytes().startswith(b"%PDF")

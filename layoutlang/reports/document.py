@@ -238,12 +238,16 @@ def html_document(s: Sections, svg: str | None) -> str:
 _TEX_SPECIAL = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#",
                 "_": r"\_", "{": r"\{", "}": r"\}", "~": r"\textasciitilde{}",
                 "^": r"\textasciicircum{}", "±": r"$\pm$", "−": "-", "×": r"$\times$",
-                "÷": r"$\div$", "µ": r"$\mu$", "<": r"$<$", ">": r"$>$", "ȳ": r"$\bar{y}$"}
+                "÷": r"$\div$", "µ": r"$\mu$", "<": r"$<$", ">": r"$>$", "ȳ": r"$\bar{y}$",
+                "→": r"$\to$", "≤": r"$\le$", "≥": r"$\ge$", "≈": r"$\approx$",
+                "°": r"$^\circ$", "·": r"$\cdot$", "²": r"$^2$", "λ": r"$\lambda$",
+                "′": "'", "–": "--", "—": "---", "“": "``", "”": "''", "’": "'"}
 
 
 def tex_escape(text: str) -> str:
     """Text safe inside a LaTeX paragraph or table cell."""
-    return "".join(_TEX_SPECIAL.get(ch, ch) for ch in text)
+    return "".join(_TEX_SPECIAL.get(ch, ch if ord(ch) < 256 else f"[U+{ord(ch):04X}]")
+                   for ch in text)  # plain pdflatex knows Latin-1; say which character it was
 
 
 def _tex_table(head: list[str], rows: list[list[str]], spec: str) -> list[str]:
@@ -265,7 +269,7 @@ def latex_document(s: Sections, drawing_file: str | None) -> str:
     if drawing_file:
         out += [r"\begin{figure}[h]", r"\centering",
                 r"\includegraphics[width=\linewidth]{" + drawing_file + "}",
-                r"\caption{Cross-section with paraxial marginal and chief rays.}",
+                r"\caption{Cross-section with the marginal and chief rays.}",
                 r"\end{figure}", ""]
     out += [r"\subsection*{Layout}"] + _tex_table(LAYOUT_HEADINGS, s.layout, "rllllll")
     out += [r"\subsection*{Setting}", r"\begin{itemize}"]
