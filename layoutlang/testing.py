@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["Outcome", "compare", "assert_quantity", "format_number"]
+__all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_number"]
 
 
 def format_number(value: float, digits: int = 6) -> str:
@@ -82,3 +82,24 @@ def assert_quantity(actual: Any, op: str, expected: float, tolerance: float | No
     outcome = compare(actual, op, expected, tolerance, relative, unit, quantity)
     if not outcome.passed:
         raise AssertionError(outcome.message)
+
+
+def assert_script(script: Any) -> None:
+    """Every expectation of a script holds, else AssertionError listing each failure as the
+    pytest plugin shows it (file:line, the line as written, expected/actual/tolerance).
+
+    Args:
+        script: a path to a layout script, or a Program from `layoutlang.load`/`loads`.
+    """
+    from .checks import check_program
+    from .interpret.interpreter import load_file
+
+    program = script if hasattr(script, "expectations") else load_file(script)
+    failed = [r for r in check_program(program) if not r.passed]
+    if failed:
+        lines = [f"{len(failed)} expectation(s) of {program.file} do not hold:"]
+        for result in failed:
+            span = result.expectation.span
+            lines.append(f"{span.file}:{span.line}: {result.expectation.text}\n"
+                         f"  {result.outcome.message}")
+        raise AssertionError("\n".join(lines))
