@@ -233,48 +233,60 @@ def trace(rays: Rays, geo: Geometry, indices: Sequence[Index],
 
 def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                  indices: Sequence[Index]) -> None:
-    """One block of rays through every step. z is kept relative to the current vertex
-    (shifted between steps), so the vertex-relative position is the stored row itself."""
+    """One block of rays through every step.
+
+    Inside the block the direction is kept as the optical direction vector K = n k (so Snell's
+    law is K' = K + Γ N with no scaling by n/n'), and z is kept relative to the current vertex
+    (shifted between steps), so the vertex-relative position is the stored row itself.
+    With |K| = n the intersection solves c n² τ² - 2 B τ + C = 0 for p + τ K, where
+    B = K_z - c (p·K) and C = c |p|² - 2 z; the root on the vertex side is
+    τ = C / (B + s sqrt(D)), D = B² - c n² C, and there n cos I = K·N = s sqrt(D) exactly
+    (s the sense of travel). Refraction: n' cos I' = sqrt(D + n'² - n²),
+    Γ = s (n' cos I' - n cos I); reflection: Γ = -2 s sqrt(D).
+    """
     data = rays.data[:, lo:hi]
     status, failed_at = rays.status[lo:hi], rays.failed_at[lo:hi]
     p, k = data[0:3], data[3:6]
     x, y, z, kx, ky, kz = data
     m = hi - lo
-    t3 = np.empty((3, m))
-    pk, w, t, b, tmp = (np.empty(m) for _ in range(5))
-    z -= steps[0].z
+    pk, w, t, b, g, tmp = (np.empty(m) for _ in range(6))
+    first, last = steps[0], steps[-1]
+    k *= _index_chunk(indices[first.space_before], lo, hi)
+    z -= first.z
     with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         for where, step in enumerate(steps):  # `steps` is a leading part of geo.steps
             if where:
                 z -= step.z - steps[where - 1].z
             c = step.curvature
             s = float(step.sense_before)
-            # p·k, needed for the intersection and again (updated) for the normal
-            np.einsum("ij,ij->j", p, k, out=pk)
+            n = _index_chunk(indices[step.space_before], lo, hi)
             if c == 0.0:
                 np.divide(z, kz, out=t)
                 np.negative(t, out=t)
+                if not math.isfinite(t.sum()):
+                    _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
             else:
-                # B = kz - c (p·k),  C = c |p|² - 2 z,  t = C / (B + s sqrt(B² - c C)) with s
-                # the sense of travel: the root on the vertex side of the sphere
+                np.einsum("ij,ij->j", p, k, out=pk)
                 np.einsum("ij,ij->j", p, p, out=w)
                 w *= c
                 w -= z
-                w -= z
+                w -= z  # C = c |p|² - 2 z
                 np.multiply(pk, -c, out=b)
-                b += kz
+                b += kz  # B = K_z - c p·K
                 np.multiply(b, b, out=t)
-                np.multiply(w, c, out=tmp)
-                t -= tmp
-                np.sqrt(t, out=t)
-                if s < 0:
-                    np.negative(t, out=t)
-                t += b
-                np.divide(w, t, out=t)
+                np.multiply(w, c * n * n, out=tmp)
+                t -= tmp  # D = B² - c n² C
+                if step.action == _REFRACT:
+                    n2 = _index_chunk(indices[step.space_before + 1], lo, hi)
+                    np.add(t, n2 * n2 - n * n, out=g)  # (n' cos I')² = D + n'² - n²
+                np.sqrt(t, out=pk)  # n cos I (its size)
+                if s > 0:
+                    np.add(b, pk, out=t)
+                else:
+                    np.subtract(b, pk, out=t)
+                np.divide(w, t, out=t)  # τ
                 if step.action != _REFRACT and not math.isfinite(t.sum()):
                     _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
-            if c == 0.0 and not math.isfinite(t.sum()):
-                _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
             np.multiply(kx, t, out=tmp)
             x += tmp
             np.multiply(ky, t, out=tmp)
@@ -290,58 +302,58 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
             if step.action == _PLANE:
                 continue
             if step.action == _IDEAL:
-                _ideal_lens(x, y, kx, ky, kz, step)
+                _ideal_lens(x, y, kx, ky, kz, step, n)
                 continue
-            # cos = k·N with the unit normal N = (-c x, -c y, 1 - c z) (+z at the vertex);
-            # after the move p·k grew by t (k is a unit vector)
-            pk += t
-            pk *= -c
-            pk += kz
-            cos = pk
             if step.action == _REFLECT:
-                # k' = k - 2 cos N = k + 2 c cos p - 2 cos e_z
-                np.multiply(cos, 2.0 * c, out=w)
+                if c == 0.0:
+                    np.negative(kz, out=kz)
+                    continue
+                # K' = K - 2 (K·N) N, K·N = s sqrt(D), N = (-c x, -c y, 1 - c z)
+                np.multiply(pk, 2.0 * c * s, out=b)
                 for pi, ki in ((x, kx), (y, ky), (z, kz)):
-                    np.multiply(pi, w, out=tmp)
+                    np.multiply(pi, b, out=tmp)
                     ki += tmp
-                cos *= 2.0
-                kz -= cos
+                np.multiply(pk, 2.0 * s, out=tmp)
+                kz -= tmp
                 continue
-            # the ray meets the surface from its usual side when s·cos > 0
-            if (np.fmin.reduce(cos) <= 0.0) if s > 0 else (np.fmax.reduce(cos) >= 0.0):
-                _flag(status, failed_at, s * cos <= 0.0, MISSED, where)
-            n_before = _index_chunk(indices[step.space_before], lo, hi)
-            n_after = _index_chunk(indices[step.space_before + 1], lo, hi)
-            mu = n_before / n_after
-            # g = sqrt(1 - mu²(1 - cos²I)) - mu cos I, cos I = s cos; k' = mu k + g s N
-            np.multiply(cos, cos, out=w)
-            w *= mu * mu
-            w += 1.0 - mu * mu
-            np.sqrt(w, out=w)
-            np.multiply(cos, mu * s, out=tmp)
-            w -= tmp  # g
-            if not math.isfinite(w.sum()):  # a ray that missed (NaN from t) or cannot refract
+            if c == 0.0:  # flat: only K_z changes, to s n' cos I'
+                n2 = _index_chunk(indices[step.space_before + 1], lo, hi)
+                np.multiply(kz, kz, out=g)
+                g += n2 * n2 - n * n
+                np.sqrt(g, out=g)
+                if not math.isfinite(g.sum()):
+                    _flag(status, failed_at, ~np.isfinite(g), TOTAL_REFLECTION, where)
+                if s > 0:
+                    kz[...] = g
+                else:
+                    np.negative(g, out=kz)
+                continue
+            np.sqrt(g, out=g)
+            g -= pk  # n' cos I' - n cos I
+            if not math.isfinite(g.sum()):  # a ray that missed (NaN from τ) or cannot refract
                 _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
-                _flag(status, failed_at, ~np.isfinite(w), TOTAL_REFLECTION, where)
-            np.multiply(w, -c * s, out=b)
-            for pi, ki in ((x, kx), (y, ky), (z, kz)):  # k = mu k - c s g p
-                ki *= mu
+                _flag(status, failed_at, ~np.isfinite(g), TOTAL_REFLECTION, where)
+            np.multiply(g, -c * s, out=b)
+            for pi, ki in ((x, kx), (y, ky), (z, kz)):  # K' = K + s Γ N
                 np.multiply(pi, b, out=tmp)
                 ki += tmp
             if s > 0:
-                kz += w
+                kz += g
             else:
-                kz -= w
-        z += steps[-1].z
+                kz -= g
+        z += last.z
+        after = last.space_before + (0 if last.action == _PLANE else 1)
+        k /= _index_chunk(indices[after], lo, hi)
 
 
-def _ideal_lens(x, y, kx, ky, kz, step: Step) -> None:
-    """Tangent-form ideal lens: slopes along the sense of travel change by -y·power."""
+def _ideal_lens(x, y, kx, ky, kz, step: Step, n: Index) -> None:
+    """Tangent-form ideal lens: slopes along the sense of travel change by -y·power
+    (K = n k: the slopes are ratios, so n drops out, and the new K keeps length n)."""
     sense = np.sign(kz)
     along = np.abs(kz)
     tx = kx / along - x * step.power
     ty = ky / along - y * step.power
-    norm = np.sqrt(1.0 + tx * tx + ty * ty)
+    norm = np.sqrt(1.0 + tx * tx + ty * ty) / n
     kx[...] = tx / norm
     ky[...] = ty / norm
     kz[...] = sense / norm
