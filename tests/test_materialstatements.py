@@ -227,3 +227,12 @@ def test_check_prints_range_warnings_on_standard_error(tmp_path, capsys) -> None
     assert f"{script}:2:1: warning: glass: the dispersion data hold from 365 nm to 1014 nm" \
         in captured.err
     assert "air" not in captured.err  # air in standard air is exactly 1, whatever the range
+
+
+def test_an_infrared_material_with_a_resonance_near_d_is_usable_in_its_range() -> None:
+    # n² = 1 + 1.0 λ²/(λ² − 0.4): no real index at the d line, fine from 1 µm on
+    program = load("wavelengths 2 um primary, 3 um\n"
+                   "medium glass sellmeier squared wavelengths (1.0, 0.4), "
+                   "valid from 1 um to 5 um\n")
+    assert program.warnings == ()
+    assert medium(program).index == pytest.approx((1 + 4 / 3.6) ** 0.5)

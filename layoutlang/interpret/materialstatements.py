@@ -80,9 +80,21 @@ class MaterialStatements:
             raise LayoutNameError(f"medium {name!r} is already defined", self.span(node.name))
         try:
             model = self._build_model(node)
-            provisional = model.index(0.5875618)
         except DispersionError as error:
             raise LayoutValueError(str(error), self.span(node)) from None
+        # a first index (the primary one is taken when the layout is finished): at the d line,
+        # else inside the valid range (an infrared material may have a resonance near d)
+        valid = getattr(model, "valid_um", None)
+        provisional = None
+        for where in (0.5875618, sum(valid) / 2 if valid else None):
+            try:
+                provisional = None if where is None else model.index(where)
+            except DispersionError as error:
+                failure = error
+            if provisional is not None:
+                break
+        if provisional is None:
+            raise LayoutValueError(str(failure), self.span(node))
         from ..system import Medium
 
         self.media[name] = Medium(name, provisional, model)
