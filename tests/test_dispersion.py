@@ -6,6 +6,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from layoutlang.materials import dispersion as d
 from layoutlang.materials.lines import SPECTRAL_LINES
@@ -64,6 +66,8 @@ def test_model_glass_meets_nd_abbe_number_and_the_normal_line() -> None:
 
 
 def test_glass_code_convention_both_ways() -> None:
+    # Six-digit glass code (common practice, international convention): the first three digits
+    # are (nd − 1)·1000 rounded, the last three νd·10; a '.ddd' suffix gives the density.
     assert d.parse_glass_code("517642") == (pytest.approx(1.517), pytest.approx(64.2))
     assert d.parse_glass_code("620364.360") == (pytest.approx(1.620), pytest.approx(36.4))
     assert d.glass_code(1.5168, 64.17) == "517642"
@@ -114,5 +118,13 @@ def test_range_warning_names_material_and_range() -> None:
 
 
 def test_abbe_number_and_partial_dispersion_definitions() -> None:
+    # νd = (nd − 1)/(nF − nC) and P(x,y) = (nx − ny)/(nF − nC) (common practice).
     assert d.abbe_number(1.5, 1.51, 1.49) == pytest.approx(25.0)
     assert d.partial_dispersion(1.52, 1.51, 1.51, 1.49) == pytest.approx(0.5)
+
+
+@given(st.lists(st.floats(0.25, 2.5), min_size=1, max_size=20))
+def test_any_wavelengths_at_once_equal_one_at_a_time(waves: list[float]) -> None:
+    together = SILICA.index(np.array(waves))
+    assert together.tolist() == [SILICA.index(w) for w in waves]
+    assert np.all(np.isfinite(together))
