@@ -236,3 +236,15 @@ def test_an_infrared_material_with_a_resonance_near_d_is_usable_in_its_range() -
                    "valid from 1 um to 5 um\n")
     assert program.warnings == ()
     assert medium(program).index == pytest.approx((1 + 4 / 3.6) ** 0.5)
+
+
+def test_colour_section_of_a_constant_layout_says_why_there_is_no_colour() -> None:
+    from layoutlang.engines.firstorder import first_order
+    from layoutlang.reports.text import full_report
+
+    program = load("medium glass index 1.5\nwavelengths d primary, F, C\n")
+    results = first_order(program.system)
+    text = full_report(program, results, check_program(program, results))
+    assert "axial colour between F and C          0 mm" in text
+    assert "note: every medium here has a constant index, so no colour shows" in text
+    assert "surroundings" not in text  # indices as written: nothing to say about air

@@ -77,6 +77,9 @@ def colour_lines(program: Program, results: FirstOrder) -> list[str]:
         lines += _table(rows)
         lines += _table([[request.describe(), _value(value, units)]
                          for request, value in table.summary])
+        if not any(m.model is not None for m in system.media):
+            lines.append("  note: every medium here has a constant index, so no colour shows; "
+                         "give media a dispersion model (see `use materials`)")
     colour = program.colour
     if colour is not None and colour.reports:
         lines += ["", "requested (colour)"]
