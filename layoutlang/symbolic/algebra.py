@@ -333,12 +333,17 @@ class Ratio:
             return sum(1 for c in poly.itercoeffs() if c < 0)
 
         num, den = self.num, dict(self.den)
-        for atom in sorted(den, key=lambda a: (len(a), str(a))):
-            if den[atom] % 2 and len(atom) > 1 and minus(-atom) + minus(-num) < \
-                    minus(atom) + minus(num):
-                exponent = den.pop(atom)
-                den[-atom] = exponent
-                num = -num
+        total = minus(num) + sum(minus(atom) for atom in den)
+        best = None
+        for atom in sorted(den, key=lambda a: (-len(a), str(a))):
+            if den[atom] % 2 and len(atom) > 1:
+                flipped = total - minus(num) - minus(atom) + minus(-num) + minus(-atom)
+                if flipped < total and (best is None or flipped < best[0]):
+                    best = (flipped, atom)
+        if best is not None:
+            atom = best[1]
+            den[-atom] = den.pop(atom)
+            num = -num
         return num, den
 
     def evaluate(self, values: dict[Any, Any]) -> Any:

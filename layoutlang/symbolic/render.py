@@ -64,6 +64,23 @@ def _plain(expr: Any) -> str:
     return sp.sstr(expr).replace("**", "^")
 
 
+def _decimal(expr: Any) -> str | None:
+    """A decimal reading of a form whose exact coefficients are long (numbers written as
+    decimals in the layout give fractions with many digits): the denominator made monic,
+    six significant digits; None when the exact form is short enough to read."""
+    import sympy as sp
+
+    numbers = [n for n in expr.atoms(sp.Rational)]
+    if not numbers or max(max(len(str(abs(n.p))), len(str(n.q))) for n in numbers) <= 8:
+        return None
+    numerator, denominator = sp.fraction(sp.together(expr))
+    symbols = sorted(expr.free_symbols, key=str)
+    if symbols and not denominator.is_number:
+        lead = sp.Poly(denominator, *symbols).LC()
+        numerator, denominator = sp.expand(numerator / lead), sp.expand(denominator / lead)
+    return _plain((numerator / denominator).evalf(6))
+
+
 def _plain_side(expr: Any) -> str:
     import sympy as sp
 
@@ -169,6 +186,9 @@ def text(outcome: Outcome) -> str:
             lines.append(f"  {_plain(d.equation)}")
         else:
             lines.append(f"  {_left(d)} = {_plain(d.expr)}")
+            decimal = _decimal(d.expr)
+            if decimal is not None:
+                lines.append(f"  {' ' * len(_left(d))} ≈ {decimal}")
         if d.nominal_value is not None:
             lines.append(f"  at nominal: {_value(d.nominal_value, _unit(part, d))}")
         for note in d.notes:
