@@ -14,7 +14,7 @@ from ..interpret.interpreter import Program
 from ..measure import LENGTH_UNITS
 from ..testing import format_number
 
-__all__ = ["has_colour", "setting_lines", "colour_lines", "colour_json"]
+__all__ = ["has_colour", "setting_lines", "colour_lines", "colour_notes", "colour_json"]
 
 
 def has_colour(program: Program) -> bool:
@@ -98,6 +98,24 @@ def colour_lines(program: Program, results: FirstOrder) -> list[str]:
     if program.warnings:
         lines += ["", "warnings"] + ["  " + w for w in program.warnings]
     return lines
+
+
+def colour_notes(program: Program, results: FirstOrder) -> list[str]:
+    """Short lines for documents: focal length per wavelength, colour summary, warnings."""
+    from ..engines.chromatic import colour_table
+
+    system = program.system
+    units = system.units
+    notes = []
+    table = colour_table(system, results)
+    if table is not None:
+        if not isinstance(table.focal_length, Unavailable):
+            notes.append("focal length per wavelength: " + ", ".join(
+                f"{_nm(system, w)} {_value(float(f), units)}"
+                for w, f in zip(table.wavelengths, table.focal_length)))
+        notes += [f"{request.describe()}: {_value(value, units)}"
+                  for request, value in table.summary]
+    return notes + list(program.warnings)
 
 
 def _achromat_lines(achromat, results: FirstOrder, units: str) -> list[str]:

@@ -140,8 +140,15 @@ def gather(program: Program, results: FirstOrder, checked: list[CheckResult]) ->
                      r.expectation.text, r.outcome.message] for r in checked]
     hazards = tuple(getattr(program, "hazards", ()) or ())
     cautions = [CAUTIONS[h] for h in hazards if h in CAUTIONS]
+    setting, notes = setting_lines(system), list(results.notes)
+    if program.colour is not None or program.warnings:  # materials and colour (chromatic.py)
+        from .chromatic import colour_notes, has_colour, setting_lines as material_lines
+
+        if has_colour(program):
+            setting += [line.strip() for line in material_lines(program)]
+            notes += colour_notes(program, results)
     return Sections(system.title or Path(program.file).name, program.file, units,
-                    layout_rows(system), setting_lines(system), first, list(results.notes),
+                    layout_rows(system), setting, first, notes,
                     expectations, _equations(program), cautions + ([GENERAL] if cautions else []))
 
 
