@@ -36,6 +36,16 @@ EXAMPLES: dict[str, list[str]] = {
         "mirror m\n",
     ],
     "a gap needs a length, e.g. 'gap 5.2'": ["gap\n"],
+    # exact rays (grammar/rays.lark)
+    "say which field: 'at field 1', 'at field 0.7' or 'at field 3 deg'": [
+        "expect rms spot radius at field < 0.02\n",
+        "expect distortion at field\n",
+    ],
+    "say what to sample: 'sample pupils 1, 0.7', 'sample fields 0, 1' or 'sample grid 17'": [
+        "sample\n",
+        "sample fields\n",
+        "sample pupils\n",
+    ],
     "say where the object is: 'object at infinity' or 'object 250 before'": [
         "object 250\n",
         "object\n",
