@@ -35,6 +35,10 @@ def evaluate_everything(text: str) -> None:
     """Parse, interpret, evaluate, check and render; only LayoutError may escape."""
     try:
         program = loads(text, "fuzz.lay")
+        if getattr(program, "symbolic", None) is not None:  # as the command line does
+            from layoutlang.symbolic.program import require_numeric
+
+            require_numeric(program)
     except LayoutError as error:
         str(error)  # the message itself must render
         return
