@@ -248,3 +248,24 @@ def test_caret_lines_of_crlf_scripts_carry_no_carriage_return() -> None:
 def test_caret_keeps_tabs_so_it_lines_up() -> None:
     error = syntax_error("\tgap 5 6\n")
     assert "    \tgap 5 6\n    \t      ^" in str(error)
+
+
+def test_the_fixture_covers_every_alias_of_the_core_grammar() -> None:
+    # every `-> alias` in grammar/layoutlang.lark must be produced by some fixture line, so a
+    # new statement without a fixture line fails here
+    import re
+
+    from lark import Tree
+
+    from layoutlang.resources import grammar_file
+    from layoutlang.syntax.parser import parser
+
+    aliases = set(re.findall(r"->\s*(\w+)", grammar_file().read_text(encoding="utf-8")))
+    seen: set[str] = set()
+    lines = [text for _, text in _snippets()] + [
+        "let x = -(a + 1) * sin(2) ^ +3"]
+    for text in lines:
+        for node in parser().parse(text + "\n").iter_subtrees():
+            if isinstance(node, Tree):
+                seen.add(str(node.data))
+    assert aliases - seen == set()
