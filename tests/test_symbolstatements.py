@@ -116,3 +116,12 @@ def test_unknown_names_in_symbolic_expressions_point_at_them() -> None:
     with pytest.raises(LayoutNameError) as caught:
         loads("symbols R\nobject 100 before\nstart in air\nsurface radius Q into air\n")
     assert ":4:" in str(caught.value)
+
+
+def test_a_symbol_where_a_comparison_is_needed_is_a_clear_error() -> None:
+    # placing the stop needs to know the stop offset is inside the gap
+    with pytest.raises(LayoutValueError) as caught:
+        loads("symbols s positive\nobject 100 before\nstart in air\n"
+              "surface front radius 20 into air\ngap 10\nsurface back radius -20 into air\n"
+              "stop s after front, diameter 5\n")
+    assert "a symbol stands where a number must be compared" in str(caught.value)

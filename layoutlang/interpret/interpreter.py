@@ -200,7 +200,10 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
     def run(self) -> Program:
         for statement in self.script.statements:
             self.execute(statement)
-        return self.finish()
+        try:
+            return self.finish()
+        except TypeError as error:  # a symbol where a number must be compared
+            raise self.symbolic_type_error(error, None) from None
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)
@@ -210,7 +213,10 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
         if handler is None:
             raise LayoutValueError(f"statement {type(statement).__name__} is not supported here",
                                    self.span(statement))
-        handler(self, statement)
+        try:
+            handler(self, statement)
+        except TypeError as error:  # a symbol where a number must be compared
+            raise self.symbolic_type_error(error, statement) from None
 
     def statement_Title(self, node: t.Title) -> None:
         """layout "text" """

@@ -148,6 +148,19 @@ class SymbolicStatements:
         self._require_symbols(node, "expect sensitivity")
         self._symbolic()["expects"].append((node, (self.file, self.lines)))
 
+    def symbolic_type_error(self, error: TypeError, node: t.Node | None) -> Exception:
+        """The error to raise for a TypeError met while running a statement: in a symbolic
+        script, a clear message (a symbol stood where a number had to be compared); otherwise
+        the original error, which is a bug to fix, not a user mistake."""
+        state = self.__dict__.get("_symbolic_state")
+        if state is None or state["declared"] is None:
+            return error
+        span = self.span(node) if node is not None else state["declared"]
+        return LayoutValueError(
+            "a symbol stands where a number must be compared here (its sign or size is not "
+            "known)", span, hint="use a number here, or give the symbols nominal values and "
+            "check the layout numerically")
+
     # --- end of the script ---------------------------------------------------------------------
     def finish_symbolic(self, program: Any) -> Any:
         """The program with `symbolic` filled in and `system` at the nominal values."""

@@ -46,6 +46,9 @@ class RingContext:
         self.limit = limit
         self._atom_cache: dict[Any, tuple[int, dict[Any, int]]] = {}
         self.irreducible: set[Any] = set()  # atoms known to be irreducible (factored)
+        fast = hasattr(ring, "ctx")  # flintring.FlintRing: gcds in C are cheap
+        self.gcd_terms = 200000 if fast else 3000  # trial division / gcd budget (terms)
+        self.proof_terms = 200000 if fast else 400  # gcd taken to prove a form reduced
 
     def check(self, poly: Any) -> Any:
         if self.limit is not None and len(poly) > self.limit:
@@ -228,7 +231,7 @@ class Ratio:
         return found
 
     # --- canonical form and conversion ------------------------------------------------------
-    def canonical(self, gcd_terms: int = 3000) -> tuple["Ratio", bool]:
+    def canonical(self, gcd_terms: int | None = None) -> tuple["Ratio", bool]:
         """Cancel every common factor that can be found cheaply.
 
         Atoms that are single generators cancel by exponent counting, integer atoms by the
@@ -237,6 +240,8 @@ class Ratio:
         fully reduced (coprime numerator and denominator).
         """
         ring = self.ctx.ring
+        if gcd_terms is None:
+            gcd_terms = self.ctx.gcd_terms
         num = self.num
         if not num:
             return Ratio(self.ctx, ring.zero), True
@@ -254,7 +259,7 @@ class Ratio:
             num = num.exquo_ground(common) if hasattr(num, "exquo_ground") else num.quo_ground(common)
             integer //= common
         # atoms that are one generator: cancel by exponent counting, all in one pass
-        lowest = [min(column) for column in zip(*num.itermonoms())]
+        lowest = _lowest(num)
         shift = [0] * len(lowest)
         for atom in [a for a in den if len(a) == 1 and a.is_monomial and a.LC == 1]:
             (monom,) = atom.itermonoms()
@@ -269,19 +274,18 @@ class Ratio:
                 else:
                     den[atom] -= cancel
         if any(shift):
-            num = ring.from_dict({tuple(m - s for m, s in zip(monom, shift)): c
-                                  for monom, c in num.iterterms()})
-        highest = [max(column) for column in zip(*num.itermonoms())]
+            num = _shift_down(num, shift)
+        highest = _highest(num)
         for atom in list(den):
             if len(atom) == 1 and atom.is_monomial:
                 continue
             exponent = den[atom]
             while exponent:
-                degrees = [max(column) for column in zip(*atom.itermonoms())]
+                degrees = _highest(atom)
                 if any(a > h for a, h in zip(degrees, highest)):
                     # the atom cannot divide the numerator; an irreducible one is then coprime
                     if atom not in self.ctx.irreducible:
-                        small = len(num) + len(atom) <= 400
+                        small = len(num) + len(atom) <= self.ctx.proof_terms
                         proven = proven and small and num.gcd(atom) == 1
                     break
                 if len(atom) <= gcd_terms and len(num) <= 50 * gcd_terms:
@@ -291,7 +295,7 @@ class Ratio:
                             proven = proven and len(num) <= gcd_terms and num.gcd(atom) == 1
                         break
                     num = quotient
-                    highest = [max(column) for column in zip(*num.itermonoms())]
+                    highest = _highest(num)
                 else:
                     proven = False
                     break
@@ -370,8 +374,31 @@ class Ratio:
         return result
 
 
+def _lowest(poly: Any) -> list[int]:
+    if hasattr(poly, "lowest"):  # flintring.FlintPoly: computed in C
+        return poly.lowest()
+    return [min(column) for column in zip(*poly.itermonoms())]
+
+
+def _highest(poly: Any) -> list[int]:
+    if hasattr(poly, "highest"):
+        return poly.highest()
+    return [max(column) for column in zip(*poly.itermonoms())]
+
+
+def _shift_down(poly: Any, shift: list[int]) -> Any:
+    """poly divided by the monomial with exponents `shift` (known to divide it)."""
+    if hasattr(poly, "lowest"):
+        quotient, _ = poly.div(poly.ring.from_dict({tuple(shift): 1}))
+        return quotient
+    return poly.ring.from_dict({tuple(m - s for m, s in zip(monom, shift)): c
+                                for monom, c in poly.iterterms()})
+
+
 def _multiply(p: Any, q: Any) -> Any:
     """p·q, by shifting exponents when one side is a single term (most products here)."""
+    if hasattr(p, "lowest"):  # flintring.FlintPoly: the C product is already fast
+        return p * q
     if len(q) == 1:
         return p.mul_term(next(iter(q.items())))
     if len(p) == 1:

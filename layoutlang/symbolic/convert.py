@@ -57,13 +57,19 @@ def _walk(expr: Any, symbols: list[Any], opaque: list[Any], depth: int = 0) -> N
         opaque.append(expr)
 
 
-def make_context(values: Iterable[Any], declared: list[Any], limit: int | None = None) -> RingContext:
+#: Which polynomials to use: "auto" (python-flint when installed, else sympy), "sympy", "flint".
+BACKEND = "auto"
+
+
+def make_context(values: Iterable[Any], declared: list[Any], limit: int | None = None,
+                 backend: str | None = None) -> RingContext:
     """One ring for all `values` (sympy expressions or plain numbers).
 
     Args:
         values: every number of the layout.
         declared: the declared symbols, which become the first generators in this order.
         limit: the term budget of any polynomial during the derivation.
+        backend: "auto", "sympy" or "flint" (default: the module's BACKEND).
     """
     import sympy as sp
     from sympy import ZZ
@@ -76,7 +82,14 @@ def make_context(values: Iterable[Any], declared: list[Any], limit: int | None =
             _walk(value, symbols, opaque)
     generators = symbols + opaque
     names = [f"_g{i}" for i in range(len(generators))] or ["_unused"]
-    poly_ring, *gens = ring(",".join(names), ZZ)
+    from . import flintring
+
+    choice = backend or BACKEND
+    if choice == "flint" or (choice == "auto" and flintring.available()):
+        poly_ring = flintring.FlintRing(names)
+        gens = list(poly_ring.gens)
+    else:
+        poly_ring, *gens = ring(",".join(names), ZZ)
     meaning = dict(zip(gens, generators or [sp.Symbol("_unused")]))
     ctx = RingContext(poly_ring, meaning, limit)
     ctx.by_expr = {expr: gen for gen, expr in meaning.items()}  # type: ignore[attr-defined]
