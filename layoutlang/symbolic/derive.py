@@ -82,8 +82,10 @@ def _structured(part: SymbolicPart, name: str) -> Structured | None:
 def derive(part: SymbolicPart, name: str, print_terms: int = PRINT_TERMS) -> Derived:
     """The closed form of one quantity (a name of `layout.DERIVABLE`, or 'conjugate
     equation' / 'lensmaker equation')."""
-    if name in ("conjugate equation", "lensmaker equation"):
+    if name == "conjugate equation":
         return conjugate_equation(part, name)
+    if name == "lensmaker equation":
+        return lensmaker_equation(part)
     kind = lookup(name).kind
     layout = layout_for(part)
     result = Derived(name, kind)
@@ -107,6 +109,23 @@ def derive(part: SymbolicPart, name: str, print_terms: int = PRINT_TERMS) -> Der
         result.structured = _structured(part, name)
         return result
     result.expr = reduced.to_expr()
+    return result
+
+
+def lensmaker_equation(part: SymbolicPart) -> Derived:
+    """1/f = power, f the effective focal length: for a lens in air the lensmaker's (thick
+    lens) equation, factored."""
+    import sympy as sp
+
+    power = derive(part, "power")
+    result = Derived("lensmaker equation", "equation", unavailable=power.unavailable)
+    if power.expr is None:
+        result.unavailable = power.unavailable or power.too_large
+        return result
+    result.equation = sp.Eq(1 / sp.Symbol("f"), sp.factor(power.expr), evaluate=False)
+    result.expr = result.equation
+    result.nominal_value = None
+    result.notes = ["f is the effective focal length 1/power (the focal length in air)"]
     return result
 
 
@@ -136,8 +155,6 @@ def conjugate_equation(part: SymbolicPart, name: str = "conjugate equation") -> 
     front, back = parts["front principal point"], parts["back principal point"]
     left = sp.Add(n0 / (a + front), nk / (image - back), evaluate=False)
     power = parts["power"]
-    if name == "lensmaker equation":
-        power = sp.factor(power)
     result.equation = sp.Eq(left, power, evaluate=False)
     result.expr = result.equation
     result.notes = [] if front == 0 and back == 0 else [

@@ -56,11 +56,14 @@ def carry_out(program: Any) -> Outcome:
 
 # --- pieces ----------------------------------------------------------------------------------
 
-def _plain(expr: Any) -> str:
+def _plain(expr: Any, as_built: bool = False) -> str:
+    """Text of an expression; an equation's right side `as_built` keeps the published order
+    ((n2 - n1)/R) instead of sympy's."""
     import sympy as sp
 
     if isinstance(expr, sp.Equality):
-        return f"{_plain_side(expr.lhs)} = {_plain_side(expr.rhs)}"
+        right = _plain_side(expr.rhs) if as_built else _plain(expr.rhs)
+        return f"{_plain_side(expr.lhs)} = {right}"
     return sp.sstr(expr).replace("**", "^")
 
 
@@ -87,11 +90,13 @@ def _plain_side(expr: Any) -> str:
     return sp.sstr(expr, order="none").replace("**", "^")
 
 
-def _tex(expr: Any) -> str:
+def _tex(expr: Any, as_built: bool = False) -> str:
     import sympy as sp
 
-    order = "none" if isinstance(expr, sp.Equality) else None
-    return sp.latex(expr, order=order)
+    if isinstance(expr, sp.Equality):  # the left side as built (n1/a before n2/s')
+        order = "none" if as_built else None
+        return f"{sp.latex(expr.lhs, order='none')} = {sp.latex(expr.rhs, order=order)}"
+    return sp.latex(expr)
 
 
 def _unit(part: SymbolicPart, d: Derived) -> str:
@@ -116,6 +121,10 @@ def _symbol_line(part: SymbolicPart) -> str:
         line += "; nominal " + ", ".join(f"{s} = {format_number(float(v))}"
                                           for s, v in part.nominal.items())
     return line
+
+
+def _built(d: Derived) -> bool:
+    return d.quantity == "conjugate equation"
 
 
 def _left(d: Derived) -> str:
@@ -183,7 +192,7 @@ def text(outcome: Outcome) -> str:
             lines.append(f"  {d.too_large}:")
             lines += _structured_lines(d)
         elif d.equation is not None:
-            lines.append(f"  {_plain(d.equation)}")
+            lines.append(f"  {_plain(d.equation, _built(d))}")
         else:
             lines.append(f"  {_left(d)} = {_plain(d.expr)}")
             decimal = _decimal(d.expr)
@@ -236,7 +245,8 @@ def latex(outcome: Outcome) -> str:
                 out.append(r"\end{align*}")
             out.append("")
             continue
-        body = _tex(d.equation) if d.equation is not None else f"{left} = {_tex(d.expr)}"
+        body = _tex(d.equation, _built(d)) if d.equation is not None else \
+            f"{left} = {_tex(d.expr)}"
         if d.nominal_value is not None:
             unit = _unit(part, d)
             body += rf" \quad (= {format_number(d.nominal_value)}\,\mathrm{{{unit}}})" if unit \
@@ -317,8 +327,8 @@ def json_text(outcome: Outcome) -> str:
                 entry["structured"] = [[_plain(s), _plain(v)] for s, v in d.structured.definitions]
                 entry["structured_result"] = _plain(d.structured.result)
         else:
-            entry["text"] = _plain(d.equation if d.equation is not None else d.expr)
-            entry["latex"] = _tex(d.equation if d.equation is not None else d.expr)
+            entry["text"] = _plain(d.equation if d.equation is not None else d.expr, _built(d))
+            entry["latex"] = _tex(d.equation if d.equation is not None else d.expr, _built(d))
             entry["terms"] = d.terms
         entry["at_nominal"] = _round(d.nominal_value)
         document["derived"].append(entry)
@@ -357,8 +367,9 @@ def equation_rows(program: Any) -> list[tuple[str, str, str]]:
         if d.unavailable or d.too_large:
             continue
         expr = d.equation if d.equation is not None else d.expr
-        plain = _plain(expr) if d.equation is not None else f"{_left(d)} = {_plain(expr)}"
-        tex = _tex(expr) if d.equation is not None else \
+        plain = _plain(expr, _built(d)) if d.equation is not None else \
+            f"{_left(d)} = {_plain(expr)}"
+        tex = _tex(expr, _built(d)) if d.equation is not None else \
             ("s' = " if d.quantity == "image distance" else "") + _tex(expr)
         if d.nominal_value is not None:
             unit = _unit(outcome.part, d)
@@ -379,7 +390,7 @@ def markdown(outcome: Outcome) -> str:
         if d.too_large:
             out += [d.too_large + ":", "", "```"] + _structured_lines(d, "") + ["```", ""]
             continue
-        body = _tex(d.equation) if d.equation is not None else \
+        body = _tex(d.equation, _built(d)) if d.equation is not None else \
             ("s' = " if d.quantity == "image distance" else "") + _tex(d.expr)
         out += ["$$", body, "$$", ""]
         if d.nominal_value is not None:

@@ -47,7 +47,7 @@ def test_single_boundary_conjugate_equation() -> None:
     # the printed form reads like the published one
     from layoutlang.symbolic.render import _plain
 
-    assert _plain(equation) == "n1/a + n2/s' = (n2 - n1)/R"
+    assert _plain(equation, as_built=True) == "n1/a + n2/s' = (n2 - n1)/R"
 
 
 def test_single_boundary_focal_lengths() -> None:
@@ -133,3 +133,12 @@ def test_two_thin_lenses_in_contact_and_apart() -> None:
                  "lens focal length f1\ngap d\nlens focal length f2\n")
     f1, f2, d = part.symbols
     assert _same(derive(part, "power").expr, 1 / f1 + 1 / f2 - d / (f1 * f2))
+
+
+def test_lensmaker_equation_form() -> None:
+    # 1/f = (n - 1)(1/R1 - 1/R2 + (n - 1) d/(n R1 R2)) (Hecht, 2017, Optics, 5th ed.,
+    # section 6.2, from memory)
+    part = _part(THICK)
+    R1, R2, n, d = part.symbols
+    equation = derive(part, "lensmaker equation").equation
+    assert _same(equation.rhs, (n - 1) * (1 / R1 - 1 / R2 + (n - 1) * d / (n * R1 * R2)))
