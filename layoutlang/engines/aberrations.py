@@ -30,7 +30,7 @@ from .realrays import OK, STATUS_WORDS, Geometry, Rays
 
 __all__ = [
     "MarginalRow", "ChiefRow", "SpotRow", "RayAnalysis", "RaySetup",
-    "analyse", "setup", "launch", "spot", "marginal", "chief", "best_focus_shift",
+    "analyse", "setup", "aim", "launch", "spot", "marginal", "chief", "best_focus_shift",
     "DEFAULT_WAVELENGTH_NM", "wavelength_sets", "indices_at",
 ]
 
@@ -117,46 +117,62 @@ def _object_rays(s: RaySetup, field: float, ex: np.ndarray, ey: np.ndarray) -> R
         return Rays.start(px, py, s.entrance_z, 0.0, slope, 1.0)
     distance = float(obj.distance)
     height = field * float(obj.height)
-    return Rays.start(0.0, height, -distance, px, py - height, s.entrance_z + distance)
+    # light travels +z in object space: from a real object towards the pupil, or from the
+    # pupil towards a virtual object that lies downstream of it
+    sense = 1.0 if s.entrance_z + distance > 0 else -1.0
+    return Rays.start(0.0, height, -distance, sense * px, sense * (py - height),
+                      sense * (s.entrance_z + distance))
 
 
-def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, aim: bool = True,
-           iterations: int = 6) -> Rays:
-    """Rays from the object point at `field` that pass the stop at (px, py)·stop radius.
+def aim(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, iterations: int = 6
+        ) -> tuple[np.ndarray, np.ndarray]:
+    """Entrance-pupil-plane points (in entrance pupil radii) whose rays from the object point
+    at `field` pass the real stop at (px, py)·stop radius.
 
-    Starts from the paraxial entrance pupil and, when `aim` is set, corrects each ray with a
-    few Newton steps (finite-difference Jacobian, all rays at once) so that its real stop
-    intercept hits the target. Rays that cannot be aimed keep their paraxial start.
+    Starts from the paraxial entrance pupil and corrects each ray with a few Newton steps
+    (finite-difference Jacobian, all rays at once). A ray that cannot be aimed keeps its
+    paraxial start.
     """
     px = np.atleast_1d(np.asarray(px, dtype=float))
     py = np.atleast_1d(np.asarray(py, dtype=float))
     px, py = np.broadcast_arrays(px, py)
-    # the paraxial guess: entrance pupil fractions equal stop fractions
-    ex, ey = px.copy(), py.copy()
-    if aim and s.geo.stop_step is not None:
-        head = s.geo.up_to_stop()
-        tx, ty = px * s.stop_radius, py * s.stop_radius
-        scale = max(s.stop_radius, 1e-300)
-        h = 1e-6
-        for _ in range(iterations):
-            base = realrays.trace(_object_rays(s, field, ex, ey), s.geo, s.indices, head)
-            fx, fy = base.x - tx, base.y - ty
-            if np.all(np.abs(np.nan_to_num(fx, nan=0)) + np.abs(np.nan_to_num(fy, nan=0))
-                      < 1e-12 * scale):
-                break
-            dx = realrays.trace(_object_rays(s, field, ex + h, ey), s.geo, s.indices, head)
-            dy = realrays.trace(_object_rays(s, field, ex, ey + h), s.geo, s.indices, head)
-            j11, j21 = (dx.x - base.x) / h, (dx.y - base.y) / h
-            j12, j22 = (dy.x - base.x) / h, (dy.y - base.y) / h
-            with np.errstate(invalid="ignore", divide="ignore"):
-                det = j11 * j22 - j12 * j21
-                step_x = (j22 * fx - j12 * fy) / det
-                step_y = (j11 * fy - j21 * fx) / det
-            good = np.isfinite(step_x) & np.isfinite(step_y)
-            ex = np.where(good, ex - np.where(good, step_x, 0), ex)
-            ey = np.where(good, ey - np.where(good, step_y, 0), ey)
-    rays = _object_rays(s, field, ex, ey)
-    return realrays.trace(rays, s.geo, s.indices)
+    ex, ey = px.copy(), py.copy()  # the paraxial guess: the same fractions
+    if s.geo.stop_step is None:
+        return ex, ey
+    head = s.geo.up_to_stop()
+    tx, ty = px * s.stop_radius, py * s.stop_radius
+    scale = max(s.stop_radius, 1e-300)
+    h = 1e-6
+    for _ in range(iterations):
+        base = realrays.trace(_object_rays(s, field, ex, ey), s.geo, s.indices, head)
+        fx, fy = base.x - tx, base.y - ty
+        if np.all(np.abs(np.nan_to_num(fx, nan=0)) + np.abs(np.nan_to_num(fy, nan=0))
+                  < 1e-12 * scale):
+            break
+        dx = realrays.trace(_object_rays(s, field, ex + h, ey), s.geo, s.indices, head)
+        dy = realrays.trace(_object_rays(s, field, ex, ey + h), s.geo, s.indices, head)
+        j11, j21 = (dx.x - base.x) / h, (dx.y - base.y) / h
+        j12, j22 = (dy.x - base.x) / h, (dy.y - base.y) / h
+        with np.errstate(invalid="ignore", divide="ignore"):
+            det = j11 * j22 - j12 * j21
+            step_x = (j22 * fx - j12 * fy) / det
+            step_y = (j11 * fy - j21 * fx) / det
+        good = np.isfinite(step_x) & np.isfinite(step_y)
+        ex = np.where(good, ex - np.where(good, step_x, 0), ex)
+        ey = np.where(good, ey - np.where(good, step_y, 0), ey)
+    return ex, ey
+
+
+def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, aim_rays: bool = True
+           ) -> Rays:
+    """Rays from the object point at `field` through the stop at (px, py)·stop radius (aimed
+    at the real stop unless `aim_rays` is False), traced to the last boundary."""
+    if aim_rays:
+        ex, ey = aim(s, field, px, py)
+    else:
+        ex, ey = np.broadcast_arrays(np.atleast_1d(np.asarray(px, dtype=float)),
+                                     np.atleast_1d(np.asarray(py, dtype=float)))
+    return realrays.trace(_object_rays(s, field, ex, ey), s.geo, s.indices)
 
 
 def _to_plane(rays: Rays, z: float) -> tuple[np.ndarray, np.ndarray]:
