@@ -28,7 +28,7 @@ import numpy as np
 from ..system import System
 from . import paraxial
 from .firstorder import FirstOrder, Unavailable, first_order
-from .paraxial import Step, TRANSFER
+from .paraxial import TRANSFER
 
 __all__ = [
     "Request", "MEDIUM_QUANTITIES", "LAYOUT_QUANTITIES", "ColourTable", "colour_table",

@@ -11,7 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import Any
 
-from ..errors import LayoutError, LayoutNameError, LayoutUnitError, LayoutValueError
+from ..errors import LayoutNameError, LayoutUnitError, LayoutValueError
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import REPORT_ORDER, lookup
 from ..syntax import tree as t
@@ -499,7 +499,3 @@ def _located(span, message: str) -> str:
     if span is None:
         return f"warning: {message}"
     return f"{span.file}:{span.line}:{span.column}: warning: {message}"
-
-
-# keep a reference so linters see LayoutError used for typing of raised subclasses
-_ = LayoutError
