@@ -40,6 +40,10 @@ def to_display(value, kind: str, units: str):
 
 def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
     """Every expectation of the program with its outcome, in script order."""
+    if program.symbolic is not None:  # checked at its nominal values, which must all be given
+        from .symbolic.program import require_numeric
+
+        require_numeric(program)
     results = results or first_order(program.system)
     units = program.system.units
     checked = []
