@@ -60,9 +60,13 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
             from .engines.rayquantities import ray_quantities
 
             rays = ray_quantities(program.system, program.rays, results)
-            value = rays.value(expectation.quantity, expectation.field, expectation.scale)
+            value = rays.value(expectation.quantity, expectation.field, expectation.scale,
+                               expectation.wavelength)
             if expectation.field is not None:
                 label = f"{label} at field {expectation.field:g}"
+            if expectation.wavelength is not None:
+                nm = expectation.wavelength * LENGTH_UNITS[units] * 1e6
+                label = f"{label} at {nm:.6g} nm"
             if expectation.scale:
                 label = f"size of the {label} in depths of focus"
         elif program.symbolic is not None and \

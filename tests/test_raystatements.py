@@ -67,6 +67,8 @@ def test_fields_as_heights_for_a_near_object():
     ("expect coma sum < 3 depth of focus", "only the marginal focus shift"),
     ("expect rms spot radius at field 1 = 3", "needs a tolerance"),
     ("expect distortion < 1 mm", "percent"),
+    ("expect distortion at field 1 at wavelength F < 1 %", "primary wavelength only"),
+    ("expect rms spot radius at field 1 at wavelength q < 1 mm", "unknown wavelength"),
     ("expect rms spot radius at field 1 < 3 deg", "length"),
 ])
 def test_bad_ray_statements_give_one_clear_error_with_a_caret(line, words):
@@ -162,3 +164,14 @@ def test_json_output_carries_the_ray_sections_without_nan(tmp_path, capsys):
     data = json.loads(capsys.readouterr().out)  # strict JSON: NaN would not load as a number
     assert data["rays"]["exact_rays"]["marginal"][0]["pupil"] == 1.0
     assert data["rays"]["seidel"]["petzval_radius"] == pytest.approx(-150.0, rel=1e-9)
+
+
+def test_spot_radius_at_another_wavelength_uses_that_wavelength_s_indices():
+    # constant indices: every wavelength sees the same media, so the spot is the same
+    checked = _checks(LENS + "wavelengths 587.6 nm primary, 486.1 nm\n"
+                      "expect rms spot radius at field 1 at wavelength 486.1 nm < 1 mm\n"
+                      "expect rms spot radius at field 1 at 532 nm < 1 mm\n")
+    assert all(r.passed for r in checked)
+    assert "at 486.1 nm" in checked[0].outcome.message
+    program = loads(LENS + "expect rms spot radius at field 1 at wavelength F < 1 mm\n")
+    assert program.expectations[0].wavelength == pytest.approx(486.1327e-6, rel=1e-9)

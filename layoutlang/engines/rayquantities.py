@@ -10,7 +10,7 @@ from __future__ import annotations
 from typing import Any
 
 from ..system import System
-from .aberrations import RayAnalysis, analyse
+from .aberrations import RayAnalysis, analyse, indices_at, setup, spot
 from .firstorder import FirstOrder, Unavailable, first_order
 from .raysettings import RaySettings
 from .seidel import SeidelSums, seidel
@@ -60,11 +60,12 @@ class RayQuantities:
             self._seidel = seidel(self.system, self.results)
         return self._seidel
 
-    def value(self, name: str, field: float | None = None, scale: str = "") -> Value:
+    def value(self, name: str, field: float | None = None, scale: str = "",
+              wavelength: float | None = None) -> Value:
         """The quantity `name` (at a field fraction where it depends on the field).
 
         With scale 'depth of focus' the size of the marginal focus shift is divided by the
-        depth of focus λ/NA².
+        depth of focus λ/NA². Spot radii take a wavelength (layout units; primary if None).
         """
         if name in SEIDEL_FIELDS or name == "petzval radius":
             sums = self.seidel
@@ -93,7 +94,7 @@ class RayQuantities:
                 return abs(value) / a.depth_of_focus
             return value
         if name in ("rms spot radius", "largest spot radius"):
-            row = a.spot_at(field)
+            row = self._spot(field, wavelength)
             if isinstance(row, Unavailable):
                 return row
             return row.rms_radius if name == "rms spot radius" else row.max_radius
@@ -103,6 +104,27 @@ class RayQuantities:
                 return row
             return row.real_height if name == "real image height" else row.distortion
         raise KeyError(name)
+
+
+def _spot_at(quantities: RayQuantities, field: float, wavelength: float | None):
+    a = quantities.analysis
+    if wavelength is None:
+        return a.spot_at(field)
+    for made in a.setups:
+        if abs(made.wavelength - wavelength) <= 1e-9 * wavelength:
+            break
+    else:  # a wavelength the layout does not list: its own indices, the same image plane
+        made = setup(quantities.system, quantities.results,
+                     indices_at(quantities.system, wavelength), wavelength)
+        if isinstance(made, Unavailable):
+            return made
+    for row in a.spots:
+        if abs(row.field - field) < 1e-12 and row.wavelength == made.wavelength:
+            return row
+    return spot(made, field, quantities.settings.grid)
+
+
+RayQuantities._spot = _spot_at
 
 
 def _first(rows) -> Any:

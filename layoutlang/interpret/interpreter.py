@@ -48,6 +48,7 @@ class Expectation:
     field: float | None = None  # ray quantities: the field fraction it is taken at
     request: Any = None  # colour quantities and `at wavelength`: engines.chromatic.Request
     scale: str = ""  # 'depth of focus' when the value is in depths of focus
+    wavelength: float | None = None  # ray quantities: the wavelength (layout units), else primary
 
 
 @dataclass(frozen=True)

@@ -136,6 +136,13 @@ class RayStatements:
                                    self.span(field),
                                    hint="fields go with spot radii, real image height and "
                                         "distortion")
+        wavelength = None
+        ref = getattr(node, "wavelength", None)
+        if ref is not None:
+            if info.name not in ("rms spot radius", "largest spot radius"):
+                raise LayoutValueError(f"{info.name} is taken at the primary wavelength only",
+                                       self.span(ref), hint="spot radii take 'at wavelength W'")
+            wavelength, _ = self._resolve_ref(ref)  # materials statements: lines, names, nm
         if scale and info.name != "marginal focus shift":
             raise LayoutValueError("only the marginal focus shift is compared with the depth "
                                    "of focus", self.span(node.quantity))
@@ -164,7 +171,8 @@ class RayStatements:
                                    expected="'± 0.05' or 'within 1%' after the value")
         span = self.span(node)
         return Expectation(info.name, kind, node.op, expected, tolerance, relative, span,
-                           span.line_text.strip(), field=fraction, scale=scale)
+                           span.line_text.strip(), field=fraction, scale=scale,
+                           wavelength=wavelength)
 
     def _percent(self, expr: t.Expr) -> float:
         """A distortion limit: '1 %' or a plain 1 (read as percent), kept as a fraction."""

@@ -285,9 +285,13 @@ class _Builder(Transformer):
     def report_seidel_sums(self, meta, items):
         return t.ReportRays("seidel sums", pos=_pos(meta))
 
+    def ray_wavelength(self, meta, items):
+        return items[-1]  # the WavelengthRef; the optional word 'wavelength' is noise
+
     def expect_at_field(self, meta, items):
-        quantity, field, op, value, tolerance = items
-        return t.ExpectRays(quantity, op, value, tolerance, field, pos=_pos(meta))
+        quantity, field, wavelength, op, value, tolerance = items
+        return t.ExpectRays(quantity, op, value, tolerance, field, wavelength=wavelength,
+                            pos=_pos(meta))
 
     def expect_in_depths(self, meta, items):
         quantity, op, value = items

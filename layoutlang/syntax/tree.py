@@ -337,7 +337,8 @@ class ReportRays(Statement):
 
 @dataclass(frozen=True)
 class ExpectRays(Statement):
-    """`expect Q at field F < V` or `expect Q < V depth of focus` (scale 'depth of focus')."""
+    """`expect Q at field F [at wavelength W] < V` or `expect Q < V depth of focus` (scale
+    'depth of focus'); `wavelength` is a WavelengthRef (grammar/materials.lark) or None."""
 
     quantity: Quantity
     op: str
@@ -345,6 +346,7 @@ class ExpectRays(Statement):
     tolerance: Tolerance | None = None
     field: Expr | None = None
     scale: str = ""
+    wavelength: Node | None = None
 
 
 # --- real materials and several wavelengths (grammar/materials.lark) ---------------------------

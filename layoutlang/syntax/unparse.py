@@ -310,6 +310,8 @@ _RULES: dict[str, Callable] = {
 
 def _ExpectRays(node: t.ExpectRays) -> str:
     at = "" if node.field is None else f" at field {unparse_expr(node.field)}"
+    if node.wavelength is not None:
+        at += f" at wavelength {_wavelength_ref(node.wavelength)}"
     text = f"expect {node.quantity.text}{at} {node.op} {unparse_expr(node.value)}"
     if node.scale:
         return f"{text} {node.scale}"
