@@ -60,6 +60,24 @@ class RayQuantities:
             self._seidel = seidel(self.system, self.results)
         return self._seidel
 
+    def _spot(self, field: float, wavelength: float | None):
+        """The spot row at a field fraction and wavelength (primary when None)."""
+        a = self.analysis
+        if wavelength is None:
+            return a.spot_at(field)
+        for made in a.setups:
+            if abs(made.wavelength - wavelength) <= 1e-9 * wavelength:
+                break
+        else:  # a wavelength the layout does not list: its own indices, the same image plane
+            made = setup(self.system, self.results, indices_at(self.system, wavelength),
+                         wavelength)
+            if isinstance(made, Unavailable):
+                return made
+        for row in a.spots:
+            if abs(row.field - field) < 1e-12 and row.wavelength == made.wavelength:
+                return row
+        return spot(made, field, self.settings.grid)
+
     def value(self, name: str, field: float | None = None, scale: str = "",
               wavelength: float | None = None) -> Value:
         """The quantity `name` (at a field fraction where it depends on the field).
@@ -104,27 +122,6 @@ class RayQuantities:
                 return row
             return row.real_height if name == "real image height" else row.distortion
         raise KeyError(name)
-
-
-def _spot_at(quantities: RayQuantities, field: float, wavelength: float | None):
-    a = quantities.analysis
-    if wavelength is None:
-        return a.spot_at(field)
-    for made in a.setups:
-        if abs(made.wavelength - wavelength) <= 1e-9 * wavelength:
-            break
-    else:  # a wavelength the layout does not list: its own indices, the same image plane
-        made = setup(quantities.system, quantities.results,
-                     indices_at(quantities.system, wavelength), wavelength)
-        if isinstance(made, Unavailable):
-            return made
-    for row in a.spots:
-        if abs(row.field - field) < 1e-12 and row.wavelength == made.wavelength:
-            return row
-    return spot(made, field, quantities.settings.grid)
-
-
-RayQuantities._spot = _spot_at
 
 
 def _first(rows) -> Any:
