@@ -107,3 +107,28 @@ stop 0 before front, diameter 10
 def test_without_a_stop_there_are_no_sums():
     result = _sums("start in air\nsurface radius 20")
     assert isinstance(result, Unavailable)
+
+
+def test_axial_colour_sum_matches_the_paraxial_focus_shift_between_wavelengths():
+    # Welford 1986, ch. 8: longitudinal chromatic aberration δl' = -C_I / (n' u'²) to first
+    # order in δn; compared here with the paraxial image distances at the two wavelengths.
+
+    program = loads("""
+wavelengths d primary, F, C
+medium crown glass code 517642
+object at infinity
+start in air
+surface front radius 60 into crown
+gap 0.0001
+surface back radius -60 into air
+stop at front, diameter 10
+image at focus
+""")
+    system = program.system
+    sums = seidel.seidel(system)
+    na = first_order(system)["numerical aperture"]
+    third = -sums.total("axial_colour") / na ** 2
+    short, long = (first_order(system.at_wavelength(w))["image distance"]
+                   for w in (486.1327e-6, 656.2725e-6))
+    assert third == pytest.approx(short - long, rel=0.02)
+    assert third < 0  # a positive singlet brings blue to a focus first
