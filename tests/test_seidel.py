@@ -112,7 +112,6 @@ def test_without_a_stop_there_are_no_sums():
 def test_axial_colour_sum_matches_the_paraxial_focus_shift_between_wavelengths():
     # Welford 1986, ch. 8: longitudinal chromatic aberration δl' = -C_I / (n' u'²) to first
     # order in δn; compared here with the paraxial image distances at the two wavelengths.
-
     program = loads("""
 wavelengths d primary, F, C
 medium crown glass code 517642
