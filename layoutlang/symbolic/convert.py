@@ -125,5 +125,7 @@ def to_ratio(ctx: RingContext, value: Any) -> Ratio:
         return product
     if expr.is_Pow and expr.exp.is_Integer:
         return to_ratio(ctx, expr.base) ** int(expr.exp)
-    gen = ctx.by_expr[expr]  # type: ignore[attr-defined]
+    gen = ctx.by_expr.get(expr)  # type: ignore[attr-defined]
+    if gen is None:
+        raise TooComplex(f"{expr} cannot be used exactly here")
     return Ratio(ctx, gen)

@@ -13,7 +13,9 @@ from typing import Any
 
 from ..engines.firstorder import Unavailable
 from ..quantities import lookup
+from ..errors import LayoutValueError
 from .algebra import Ratio, TooLarge
+from .convert import TooComplex
 from .layout import SymbolicLayout
 from .program import SymbolicPart
 from .structured import MATRIX_QUANTITIES, Structured, structured_form, with_exact_values
@@ -33,8 +35,13 @@ def layout_for(part: SymbolicPart) -> SymbolicLayout:
     """One SymbolicLayout per symbolic program (its matrix is shared by every request)."""
     cached = _LAYOUTS.get(id(part))
     if cached is None or cached[0] is not part:
-        cached = (part, SymbolicLayout(part.system, list(part.symbols), part.nominal,
-                                       limit=WORK_TERMS))
+        try:
+            layout = SymbolicLayout(part.system, list(part.symbols), part.nominal,
+                                    limit=WORK_TERMS)
+        except (TooComplex, ZeroDivisionError) as error:
+            raise LayoutValueError(f"this layout cannot be derived exactly: {error}",
+                                   part.declared_at) from None
+        cached = (part, layout)
         _LAYOUTS[id(part)] = cached
     return cached[1]
 
@@ -89,6 +96,7 @@ def derive(part: SymbolicPart, name: str, print_terms: int = PRINT_TERMS) -> Der
     kind = lookup(name).kind
     layout = layout_for(part)
     result = Derived(name, kind)
+    seen = len(layout.notes)
     try:
         value = layout.quantity(name)
     except TooLarge as error:
@@ -102,7 +110,7 @@ def derive(part: SymbolicPart, name: str, print_terms: int = PRINT_TERMS) -> Der
     reduced, proven = value.canonical()
     result.ratio, result.reduced, result.terms = reduced, proven, reduced.terms()
     result.nominal_value = _nominal_value(layout, reduced)
-    result.notes = list(layout.notes)
+    result.notes = list(layout.notes[seen:])
     if result.terms > print_terms:
         result.too_large = (f"the expanded form has {result.terms} terms, too many to read; "
                             "shown with named intermediates instead")

@@ -68,7 +68,9 @@ class SymbolicLayout:
     def __post_init__(self) -> None:
         import sympy as sp
 
-        self.ctx: RingContext = make_context(_system_values(self.system), self.symbols, self.limit)
+        angle = self.system.object.field_angle
+        values = _system_values(self.system) + ([sp.tan(angle)] if angle else [])
+        self.ctx: RingContext = make_context(values, self.symbols, self.limit)
         self.notes: list[str] = []
         self._cache: dict[str, Any] = {}
         r = lambda v: to_ratio(self.ctx, v)  # noqa: E731 — one conversion for every field
