@@ -7,7 +7,7 @@ from decimal import Decimal
 from pathlib import Path
 
 import pytest
-from hypothesis import given, strategies as st
+from hypothesis import HealthCheck, given, settings, strategies as st
 
 from layoutlang import loads
 from layoutlang.errors import LayoutSyntaxError
@@ -152,3 +152,58 @@ def test_canonical_number_never_changes_the_value(value: Decimal) -> None:
         out = canonical_number(text)
         assert Decimal(out) == Decimal(text)
         assert canonical_number(out) == out
+
+
+# --- any grammar-shaped text, spaced and spelled at random ------------------------------------
+
+def _spaced(word: str):
+    return st.sampled_from([f" {word} ", f"  {word}\t", f"\t{word}   "])
+
+
+def _terminal_strategies() -> dict:
+    """A strategy for every terminal of the joined grammar (new features included), with
+    random spacing around each token and unusual spellings of numbers."""
+    from layoutlang.syntax.parser import parser
+
+    found = {}
+    for terminal in parser().terminals:
+        pattern = terminal.pattern
+        if pattern.type == "str":
+            found[terminal.name] = _spaced(pattern.value)
+        else:
+            found[terminal.name] = st.from_regex(pattern.to_regexp(), fullmatch=True).filter(
+                lambda v: "\n" not in v and "#" not in v).flatmap(_spaced)
+    found.update({
+        "NAME": st.sampled_from(["front", "back", "crown", "air", "x", "f", "focal", "length",
+                                 "number"]).flatmap(_spaced),
+        "NUMBER": st.sampled_from(["0", "1", "2.50", "050", "5.", ".5", "1E3", "1e+03",
+                                   "2.5e-03", "1e0"]).flatmap(_spaced),
+        "STRING": _spaced('"a # not a comment"'),
+        "_NL": st.sampled_from(["\n", "\n\n\n", "   # a note\n", "\t#x\n\n"]),
+    })
+    return found
+
+
+def _grammar_text():
+    from hypothesis.extra.lark import from_lark
+    from lark import Lark
+
+    from layoutlang.syntax.parser import grammar_text
+
+    return from_lark(Lark(grammar_text(), parser="lalr"), start="start",
+                     explicit=_terminal_strategies())
+
+
+_GRAMMAR_SHAPED = _grammar_text()
+
+
+@settings(max_examples=100, deadline=None,
+          suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])
+@given(_GRAMMAR_SHAPED)
+def test_any_grammar_shaped_text_formats_idempotently(text: str) -> None:
+    try:
+        once = format_text(text)  # raises LayoutError (not syntax) if the meaning changed
+    except LayoutSyntaxError:
+        return  # generated without the contextual lexer: not every text parses
+    assert format_text(once) == once
+    assert "  \n" not in once and not once.startswith("\n")
