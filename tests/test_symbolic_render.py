@@ -112,3 +112,26 @@ def test_command_errors(tmp_path, capsys) -> None:
     bad.write_text("symbols R\nsolve R so that image distance = 4\nstart in air\n"
                    "surface radius R into air\n")
     assert main(["derive", str(bad)]) == 1  # the image distance of an object at infinity
+
+
+def test_structured_code_agrees_with_the_numeric_engine() -> None:
+    from layoutlang.engines.firstorder import first_order
+
+    k = 8
+    text = _many_surfaces(k)
+    values = {f"R{i}": (-1) ** i * (30 + 5 * i) for i in range(k)}
+    values.update({f"n{i}": 1.5 + 0.02 * i for i in range(k)})
+    values.update({f"d{i}": 2 + i for i in range(k - 1)})
+    values["a"] = 250
+    text = text.replace("object a before", "nominal " + ", ".join(
+        f"{name} = {value}" for name, value in values.items()) + "\nobject a before")
+    program = loads(text)
+    outcome = render.carry_out(program)
+    namespace: dict = {}
+    exec(compile(render.python_code(outcome), "derived.py", "exec"), namespace)
+    import inspect
+
+    function = namespace["image_distance"]
+    args = [values[name] for name in inspect.signature(function).parameters]
+    expected = first_order(program.system)["image distance"]
+    assert abs(function(*args) - expected) <= 1e-9 * (1 + abs(expected))

@@ -286,6 +286,11 @@ def python_code(outcome: Outcome) -> str:
               "import numpy", "from numpy import *  # noqa: F401,F403 — names used by the code",
               ""]
     for d in outcome.derived:
+        if d.structured is not None:
+            chunks.append(f"# {d.quantity} in {_unit(part, d) or 'plain numbers'}: "
+                          "named intermediates (the expanded form is too large)")
+            chunks.append(_structured_code(part, d) + "\n")
+            continue
         if d.expr is None or d.equation is not None:
             chunks.append(f"# {d.quantity}: " + (d.unavailable or d.too_large or
                                                  "an equation, not a function") + "\n")
@@ -298,6 +303,23 @@ def python_code(outcome: Outcome) -> str:
         chunks.append(f"# {d.quantity} in {_unit(part, d) or 'plain numbers'}")
         chunks.append(source.rstrip() + "\n")
     return "\n".join(chunks).rstrip() + "\n"
+
+
+def _structured_code(part: SymbolicPart, d: Derived) -> str:
+    """A numpy function that computes the quantity step by step through its intermediates."""
+    from sympy.printing.numpy import NumPyPrinter
+
+    printer = NumPyPrinter({"fully_qualified_modules": False})
+    defined = {symbol for symbol, _ in d.structured.definitions}
+    used = set()
+    for _, value in d.structured.definitions:
+        used |= getattr(value, "free_symbols", set())
+    args = [s for s in part.symbols if s in used and s not in defined]
+    lines = [f"def {_function_name(d.quantity)}({', '.join(map(str, args))}):"]
+    for symbol, value in d.structured.definitions:
+        lines.append(f"    {symbol} = {printer.doprint(value)}")
+    lines.append(f"    return {printer.doprint(d.structured.result)}")
+    return "\n".join(lines)
 
 
 # --- JSON ------------------------------------------------------------------------------------
