@@ -95,7 +95,7 @@ def setting_lines(system: System) -> list[str]:
     if stop is None:
         lines.append("no stop given (pupils and f-number are not computed)")
     else:
-        where = ("before the first boundary" if stop.after < 0 else
+        where = (f"{_length(-stop.offset, units)} before the first boundary" if stop.after < 0 else
                  f"at {system.boundaries[stop.after].name}" if stop.offset == 0 else
                  f"{_length(stop.offset, units)} after {system.boundaries[stop.after].name}")
         size = (f"diameter {_length(stop.size, units)}" if stop.size_kind == "diameter" else
