@@ -7,7 +7,6 @@ its machinery (matplotlib for drawings) only when it runs.
 from __future__ import annotations
 
 import argparse
-import difflib
 import sys
 from pathlib import Path
 
@@ -70,6 +69,8 @@ def _format(paths: list[str], check: bool, show_diff: bool) -> int:
         if not result.changed:
             continue
         if show_diff:
+            import difflib
+
             sys.stdout.writelines(difflib.unified_diff(
                 result.original.splitlines(keepends=True),
                 result.formatted.splitlines(keepends=True), f"{path} (as written)",
