@@ -156,3 +156,50 @@ image at focus
 """).system, exact=True)
     assert all(r.label == "" for r in section.rays)
     assert any("paraxial rays drawn: exact rays need a stop" in n for n in section.notes)
+
+
+def test_degenerate_layouts_give_a_clear_error_not_inf_or_nan() -> None:
+    from layoutlang.errors import LayoutValueError
+
+    with pytest.raises(LayoutValueError, match="one plane"):
+        _section("""object 0 before, height 3
+start in air
+surface s0 flat into air
+stop at s0, diameter 3
+""")
+    with pytest.raises(LayoutValueError, match="cannot be drawn"):
+        _section("""medium glass index 1.5
+object at infinity, field angle 1 deg
+start in air
+surface s0 radius 1e-38 into glass
+stop 1e300 before s0, f-number 1
+image at focus
+""")
+
+
+def test_random_layouts_draw_finite_or_say_why() -> None:
+    # Random layouts (including extreme values) from the fuzz tests' strategy: every drawn
+    # number is finite, or the drawing is refused with a LayoutError.
+    from hypothesis import HealthCheck, given, settings
+
+    from layoutlang.errors import LayoutError
+
+    fuzz = pytest.importorskip("test_fuzz")
+
+    @settings(max_examples=150, deadline=None, suppress_health_check=list(HealthCheck))
+    @given(fuzz.layouts())
+    def check(text: str) -> None:
+        try:
+            system = loads(text).system
+        except LayoutError:
+            return
+        for exact in (False, True):
+            try:
+                section = cross_section(system, exact=exact)
+            except LayoutError:
+                continue
+            values = [v for r in section.rays for v in r.z + r.y + r.virtual_z + r.virtual_y]
+            values += [p.semi_aperture for p in section.profiles] + list(section.extent())
+            assert all(math.isfinite(v) for v in values), text
+
+    check()

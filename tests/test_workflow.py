@@ -117,3 +117,12 @@ def test_report_command(tmp_path: Path, capsys) -> None:
     out = tmp_path / "r.tex"
     assert main(["report", bad, "--format", "latex", "-o", str(out)]) == 1
     assert out.read_text().startswith(r"\documentclass")
+
+
+def test_draw_a_layout_that_cannot_be_drawn(tmp_path: Path, capsys) -> None:
+    flat = _write(tmp_path, "flat.lay", "object 0 before, height 3\nstart in air\n"
+                                        "surface s0 flat into air\nstop at s0, diameter 3\n")
+    assert main(["draw", flat, "-o", str(tmp_path / "pic.svg")]) == 2
+    err = capsys.readouterr().err
+    assert "cannot be drawn" in err and "Traceback" not in err
+    assert not (tmp_path / "pic.svg").exists()

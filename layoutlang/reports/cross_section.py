@@ -10,13 +10,14 @@ ray (edge of the field through the centre of the stop), drawn ending on the surf
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
 from ..engines import paraxial
 from ..engines.firstorder import FirstOrder, Unavailable, first_order
 from ..engines.paraxial import TRANSFER, Step
+from ..errors import LayoutError, LayoutValueError
 from ..system import IDEAL, MIRROR, System
 
 __all__ = ["Profile", "Element", "RayPath", "CrossSection", "cross_section", "sag"]
@@ -196,6 +197,56 @@ def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | No
 
 def cross_section(system: System, results: FirstOrder | None = None,
                   exact: bool = False) -> CrossSection:
+    """Lay out a numeric System in the plane (see `_cross_section`), or raise a
+    LayoutValueError saying why this layout cannot be drawn. Rays whose numbers leave the
+    range of floating point are left out with a note, never drawn as inf or NaN."""
+    try:
+        with np.errstate(all="ignore"):
+            section = _cross_section(system, results, exact)
+    except LayoutError:
+        raise
+    except (ArithmeticError, ValueError) as error:
+        raise LayoutValueError(f"this layout cannot be drawn: {error}") from None
+    return _finite(section)
+
+
+def _finite(section: CrossSection) -> CrossSection:
+    """The section without anything that is not a finite number."""
+    def finite(*values: float) -> bool:
+        return all(math.isfinite(v) for v in values)
+
+    notes = list(section.notes)
+    rays = []
+    for ray in section.rays:
+        if finite(*ray.z, *ray.y, *ray.virtual_z, *ray.virtual_y):
+            rays.append(ray)
+        else:
+            notes.append(f"a {ray.role} ray is not drawn: its positions leave the range of "
+                         "numbers a drawing can show")
+    for profile in section.profiles:
+        if not finite(profile.z, profile.semi_aperture, profile.curvature) or \
+                profile.semi_aperture <= 0:
+            raise LayoutValueError(f"this layout cannot be drawn: {profile.name} has no finite "
+                                   "position or size")
+    parts = {}
+    for name in ("stop", "image", "object_plane"):
+        value = getattr(section, name)
+        parts[name] = value if value is None or finite(*value) else None
+    section = replace(section, rays=rays, notes=notes, **parts)
+    z_min, z_max, y_max = section.extent()
+    span = z_max - z_min
+    if finite(z_min, z_max, y_max, span) and 0 < y_max and span <= 1e-6 * y_max:
+        raise LayoutValueError("this layout cannot be drawn: everything lies in one plane "
+                               "(it has no length along the axis)")
+    if not finite(z_min, z_max, y_max, span) or y_max <= 0 or y_max > 1e6 * span \
+            or span > 1e6 * y_max:
+        raise LayoutValueError("this layout cannot be drawn: its lengths span more than six "
+                               "orders of magnitude")
+    return section
+
+
+def _cross_section(system: System, results: FirstOrder | None = None,
+                   exact: bool = False) -> CrossSection:
     """Lay out a numeric System in the plane.
 
     Args:
