@@ -130,3 +130,12 @@ def test_latex_compiles_where_a_tex_system_is_installed(script: Path, tmp_path: 
                          cwd=tmp_path, capture_output=True, text=True, timeout=120)
     assert run.returncode == 0, run.stdout[-2000:]
     assert (tmp_path / "report.pdf").read_bytes().startswith(b"%PDF")
+
+
+def test_a_layout_that_cannot_be_drawn_still_gets_its_report(tmp_path: Path) -> None:
+    path = tmp_path / "flat.lay"
+    path.write_text("object 0 before, height 3\nstart in air\nsurface s0 flat into air\n"
+                    "stop at s0, diameter 3\n", encoding="utf-8")
+    text = render_document(str(path), "md", str(tmp_path / "r.md")).text
+    assert "## Drawing" not in text and "Note: no drawing: this layout cannot be drawn" in text
+    assert not (tmp_path / "r-drawing.svg").exists()

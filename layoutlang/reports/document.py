@@ -327,22 +327,37 @@ def render_document(path: str, doc_format: str, output: str | None = None) -> Do
     results = first_order(program.system)
     sections = gather(program, results, check_program(program, results))
     cautions = tuple(getattr(program, "hazards", ()) or ())
+
+    def picture(kind: str) -> bytes | None:
+        """The drawing, or None (with the reason among the notes) for a layout that cannot
+        be drawn: the rest of the report is still worth having."""
+        from ..errors import LayoutError
+
+        try:
+            return drawing_bytes(program.system, kind, cautions)
+        except LayoutError as error:
+            sections.notes.append(f"no drawing: {error.message}")
+            return None
+
     if doc_format == "html":
-        svg = drawing_bytes(program.system, "svg", cautions).decode("utf-8")
-        svg = svg[svg.index("<svg"):]  # inline: without the XML prolog and doctype
-        return Document(html_document(sections, svg), sections.all_hold)
+        svg = picture("svg")
+        inline = None if svg is None else svg.decode("utf-8")[svg.decode("utf-8").index("<svg"):]
+        return Document(html_document(sections, inline), sections.all_hold)
     if doc_format == "md":
-        if output is None:
-            data = base64.b64encode(drawing_bytes(program.system, "svg", cautions)).decode()
-            link = f"data:image/svg+xml;base64,{data}"
-        else:
-            picture = Path(output).with_name(Path(output).stem + "-drawing.svg")
-            picture.write_bytes(drawing_bytes(program.system, "svg", cautions))
-            link = picture.name
+        svg = picture("svg")
+        link = None
+        if svg is not None and output is None:
+            link = f"data:image/svg+xml;base64,{base64.b64encode(svg).decode()}"
+        elif svg is not None:
+            beside = Path(output).with_name(Path(output).stem + "-drawing.svg")
+            beside.write_bytes(svg)
+            link = beside.name
         return Document(markdown(sections, link), sections.all_hold)
     picture_name = None
     if output is not None:
-        picture = Path(output).with_name(Path(output).stem + "-drawing.pdf")
-        picture.write_bytes(drawing_bytes(program.system, "pdf", cautions))
-        picture_name = picture.name
+        pdf = picture("pdf")
+        if pdf is not None:
+            beside = Path(output).with_name(Path(output).stem + "-drawing.pdf")
+            beside.write_bytes(pdf)
+            picture_name = beside.name
     return Document(latex_document(sections, picture_name), sections.all_hold)
