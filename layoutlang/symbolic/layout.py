@@ -231,6 +231,8 @@ class SymbolicLayout:
         else:
             a, b, c, d = self._matrix()
         if tau is None:
+            if name == "angular magnification" and c.is_zero():  # as firstorder.py: afocal
+                return n0 * d / nk
             if name in ("magnification", "longitudinal magnification", "angular magnification"):
                 return Unavailable("none: the object is at infinity")
             if c.is_zero():
