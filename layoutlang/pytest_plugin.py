@@ -77,13 +77,17 @@ class LayoutScript(pytest.File):
             yield ScriptErrorItem.from_parent(self, name="script", error=error)
             return
         self.program = program
+        seen: dict[str, int] = {}
         for index, expectation in enumerate(program.expectations):
             span = expectation.span
             where = f"line{span.line}"
             if Path(span.file).resolve() != self.path.resolve():  # from a `use "file"`
                 where = f"{Path(span.file).name}:line{span.line}"
-            yield ExpectationItem.from_parent(
-                self, name=f"{where}[{expectation.quantity}]", index=index)
+            name = f"{where}[{expectation.quantity}]"
+            seen[name] = seen.get(name, 0) + 1
+            if seen[name] > 1:  # one line that states several expectations: keep ids unique
+                name = f"{where}[{expectation.quantity}-{seen[name]}]"
+            yield ExpectationItem.from_parent(self, name=name, index=index)
 
     def results(self) -> list:
         """The check results of every expectation, computed on first use."""
