@@ -135,8 +135,8 @@ class ExpectationItem(pytest.Item):
         return super().repr_failure(excinfo)
 
     def reportinfo(self) -> tuple[Path, int, str]:
-        return self.path, self.expectation_line - 1, f"{self.expectation_file}:" \
-            f"{self.expectation_line}: {self.name}"
+        return self.path, self.expectation_line - 1, \
+            f"{Path(self.expectation_file).name}:{self.expectation_line}: {self.name}"
 
 
 class _ScriptError(Exception):
