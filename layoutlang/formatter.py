@@ -35,8 +35,8 @@ _MAX_PAD = 24
 def canonical_number(text: str) -> str:
     """A number literal in canonical spelling, never with a different decimal value.
 
-    `.5` → `0.5`, `5.` → `5`, `007` → `7`, `1E+03` → `1e3`, `2.50e-03` → `2.50e-3`. Trailing
-    zeros after the point are kept: writers use them to show the precision they mean.
+    `.5` → `0.5`, `5.` → `5`, `007` → `7`, `1E+03` → `1e3`, `2.50e-03` → `2.50e-3`.
+    Trailing zeros after the point are kept: writers use them to show the precision they mean.
     """
     match = _NUMBER.match(text)
     if not match or text in ("", "."):
@@ -250,9 +250,11 @@ def _same_values(node):
     if isinstance(node, Number):
         return replace(node, text=str(Decimal(node.text).normalize()))
     if is_dataclass(node) and not isinstance(node, type):
-        changes = {f.name: _same_values(getattr(node, f.name)) for f in fields(node)
-                   if f.compare and isinstance(getattr(node, f.name), (tuple, object))
-                   and (is_dataclass(getattr(node, f.name)) or isinstance(getattr(node, f.name), tuple))}
+        changes = {}
+        for f in fields(node):
+            value = getattr(node, f.name)
+            if f.compare and f.init and (is_dataclass(value) or isinstance(value, tuple)):
+                changes[f.name] = _same_values(value)
         return replace(node, **changes) if changes else node
     return node
 
@@ -277,7 +279,8 @@ def format_text(text: str, file: str = "<script>") -> str:
     source, tokens = _tokens(text, file)
     lines, head = _lines(source, tokens)
     formatted = _render(_align_operators(lines), head)
-    if _same_values(parse(formatted, file).statements) != _same_values(parse(text, file).statements):
+    before = _same_values(parse(text, file).statements)
+    if _same_values(parse(formatted, file).statements) != before:
         raise LayoutError(f"{file}: formatting would change what the script says; "
                           "left unchanged (please report this)")
     return formatted

@@ -12,7 +12,8 @@ import pytest
 import layoutlang
 from layoutlang.errors import LayoutValueError
 
-# One refracting boundary, n1/s + n2/s' = (n2 - n1)/R (Hecht 2017, Optics, 5th ed., eq. 5.8):
+# One refracting boundary, n1/s + n2/s' = (n2 - n1)/R (Hecht 2017, Optics, 5th ed., eq. 5.8;
+# number from memory):
 # n1 = 1, n2 = 1.5, R = 20, s = 100 → s' = 100.
 BOUNDARY = """symbols n1 n2 R a positive
 nominal n1 = 1, n2 = 1.5, R = 20, a = 100
@@ -45,7 +46,7 @@ def test_derive_gives_the_single_surface_formula() -> None:
 
     n1, n2, R, a = sympy.symbols("n1 n2 R a", positive=True)
     expr = layoutlang.derive(program, "image distance")
-    # solve n1/a + n2/s' = (n2 - n1)/R for s' (Hecht 2017, eq. 5.8)
+    # solve n1/a + n2/s' = (n2 - n1)/R for s' (Hecht 2017, eq. 5.8; number from memory)
     expected = n2 / ((n2 - n1) / R - n1 / a)
     free = {s.name: s for s in expr.free_symbols}
     expr = expr.subs({free[k]: v for k, v in zip(("n1", "n2", "R", "a"), (n1, n2, R, a))})

@@ -36,7 +36,8 @@ def test_sag_matches_the_sphere() -> None:
 
 
 def test_thin_lens_rays_meet_where_the_gaussian_formula_says() -> None:
-    # 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50, s = 100 → s' = 100,
+    # 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17; number from memory):
+    # f = 50, s = 100 → s' = 100,
     # magnification -s'/s = -1, so the chief ray from height 2 ends at -2.
     section = _section("""object 100 before, height 2
 start in air
@@ -73,7 +74,8 @@ image at focus
 
 def test_concave_mirror_folds_the_path_back_to_its_focus() -> None:
     # A spherical mirror focuses a distant object at f = |R|/2 in front of it (Hecht 2017,
-    # Optics, 5th ed., sec. 5.4.3): R = 200 → the focus lies 100 upstream of the vertex.
+    # Optics, 5th ed., sec. 5.4.3; number from memory): R = 200 → the focus lies 100 upstream
+    # of the vertex.
     section = _section("""object at infinity, field angle 1 deg
 start in air
 mirror main radius -200, clear diameter 40
@@ -87,7 +89,8 @@ image at focus
     assert section.profiles[0].semi_aperture == 20  # from the clear diameter
     assert section.profiles[0].from_clear_diameter
     chief = next(r for r in section.rays if r.role == "chief")
-    # image height f·tan(field angle) in size (Hecht 2017, sec. 5.4.3; common practice)
+    # image height f·tan(field angle) in size (Hecht 2017, sec. 5.4.3, from memory;
+    # common practice)
     assert abs(chief.y[-1]) == pytest.approx(100 * math.tan(math.radians(1)), rel=1e-9)
 
 

@@ -12,7 +12,8 @@ pytest.importorskip("matplotlib")
 
 from layoutlang.reports.document import render_document, tex_escape  # noqa: E402
 
-# One thin lens, 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50, s = 150
+# One thin lens, 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17; number from memory):
+# f = 50, s = 150
 # → s' = 75 and magnification -0.5. The third expectation is deliberately wrong.
 SCRIPT = """layout "Relay lens, 50 mm"
 hazard laser
@@ -94,7 +95,7 @@ def test_derived_equations_are_in_every_format(tmp_path: Path) -> None:
     if not hasattr(render, "equation_rows"):
         pytest.skip("the symbolic engine has no report rows here")
     # One refracting boundary, n1/s + n2/s' = (n2 - n1)/R (Hecht 2017, Optics, 5th ed.,
-    # eq. 5.8): n1 = 1, n2 = 1.5, R = 20, s = 100 → s' = 100.
+    # eq. 5.8; number from memory): n1 = 1, n2 = 1.5, R = 20, s = 100 → s' = 100.
     path = tmp_path / "boundary.lay"
     path.write_text("""layout "One boundary"
 symbols n1 n2 R a positive

@@ -8,7 +8,8 @@ import xml.etree.ElementTree as ET
 from layoutlang import check, loads
 from layoutlang.reports.junit import ScriptOutcome, junit_xml
 
-# f = 50, s = 150 → s' = 75 (Hecht 2017, Optics, 5th ed., eq. 5.17); the second one is wrong.
+# f = 50, s = 150 → s' = 75 (Hecht 2017, Optics, 5th ed., eq. 5.17; number from memory);
+# the second one is wrong.
 SCRIPT = """object 150 before, height 2
 start in air
 lens relay focal length 50

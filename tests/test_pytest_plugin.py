@@ -11,7 +11,8 @@ import pytest
 
 pytest_plugins = ["pytester"]
 
-# A single thin lens, 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17): f = 50 and an
+# A single thin lens, 1/s + 1/s' = 1/f (Hecht 2017, Optics, 5th ed., eq. 5.17; number from
+# memory): f = 50 and an
 # object 150 before give s' = 75 and magnification -s'/s = -0.5.
 GOOD = """\
 layout "one thin lens"
@@ -99,8 +100,8 @@ def test_xdist_loadfile(pytester: pytest.Pytester) -> None:
 def test_importing_the_plugin_is_cheap() -> None:
     # The plugin loads in every pytest run: importing it must not pull in the parser,
     # numpy or sympy (they load when a script is collected).
-    code = ("import sys, layoutlang.pytest_plugin; "
-            "print(sorted(m for m in ('lark', 'numpy', 'sympy', 'matplotlib') if m in sys.modules))")
+    code = ("import sys, layoutlang.pytest_plugin; print(sorted(m for m in "
+            "('lark', 'numpy', 'sympy', 'matplotlib') if m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
 

@@ -12,7 +12,7 @@ import pytest
 from layoutlang.cli import main
 from layoutlang.reports.colour import paint, use_colour
 
-# f = 50, s = 150 → s' = 75 (Hecht 2017, Optics, 5th ed., eq. 5.17).
+# f = 50, s = 150 → s' = 75 (Hecht 2017, Optics, 5th ed., eq. 5.17; number from memory).
 GOOD = """object 150 before, height 2
 start in air
 lens relay focal length 50
