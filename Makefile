@@ -19,9 +19,10 @@ test: $(VENV)/.installed
 	$(PY) -m pytest
 	$(MAKE) --no-print-directory examples wheel-check
 
-# Every example must hold its own expectations.
+# Every example must hold its own expectations and keep the canonical layout.
 examples: $(VENV)/.installed
 	$(VENV)/bin/layoutlang check examples/*.lay
+	$(VENV)/bin/layoutlang format --check examples/*.lay stdlib/*.lay
 
 # Proves grammar/ and stdlib/ are found from a built wheel, not only from the source tree.
 wheel-check: $(VENV)/.installed
