@@ -10,6 +10,7 @@ from prompt_toolkit.input import create_pipe_input
 from prompt_toolkit.output import DummyOutput
 
 from layoutlang.cli import main
+from layoutlang.formatter import format_text
 from layoutlang.interpret.interpreter import load_file
 from layoutlang.repl.session import Session
 from layoutlang.repl.workspace import Workspace
@@ -52,9 +53,10 @@ def test_the_five_minute_tour(tmp_path: Path) -> None:
     assert f"saved {len(workspace.statements)} statements to {copy}" in out
     assert load_file(copy).system == original
     assert main(["check", str(copy)]) == 0
-    # the example is in canonical form: saving it unchanged writes it back byte for byte
-    assert copy.read_text(encoding="utf-8").replace(
-        "expect back focal distance > 20\n", "") == CAMERA.read_text(encoding="utf-8")
+    # the example is in canonical form: saving writes it back byte for byte, with the new
+    # expectation appended and aligned as `layoutlang format` would
+    assert copy.read_text(encoding="utf-8") == format_text(
+        CAMERA.read_text(encoding="utf-8") + "expect back focal distance > 20\n")
 
 
 def test_unfinished_statements_continue_on_the_next_line() -> None:

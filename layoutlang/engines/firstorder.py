@@ -117,20 +117,8 @@ class _Evaluation:
             v["afocal angular magnification"] = n0 * d / nk
             self.notes.append("afocal layout: no focal points; see the angular magnification")
             return
-        power = formulas.power(a, b, c, d)
-        v["power"] = power
-        v["effective focal length"] = 1 / power
-        v["focal length"] = nk / power
-        v["object focal length"] = n0 / power
-        v["back focal distance"] = formulas.back_focal_distance(a, b, c, d, nk)
-        v["front focal distance"] = formulas.front_focal_distance(a, b, c, d, n0)
-        front = formulas.front_principal_point(a, b, c, d, n0)
-        back = formulas.back_principal_point(a, b, c, d, nk)
-        shift = formulas.nodal_shift(a, b, c, d, n0, nk, self.sense_k)
-        v["front principal point"] = front
-        v["back principal point"] = back
-        v["front nodal point"] = front + self.sense_k * shift
-        v["back nodal point"] = back + shift
+        for name in formulas.CARDINAL:
+            v[name] = formulas.cardinal(name, a, b, c, d, n0, nk, self.sense_k)
         v["afocal angular magnification"] = Unavailable("none: the layout has optical power")
 
     # where the image is and how large

@@ -178,6 +178,41 @@ class formulas:
         """How far each nodal point lies downstream of its principal point."""
         return (sense_k * n0 - nk) / c
 
+    #: The quantities `cardinal` knows, in report order.
+    CARDINAL = ("power", "effective focal length", "focal length", "object focal length",
+                "back focal distance", "front focal distance", "front principal point",
+                "back principal point", "front nodal point", "back nodal point")
+
+    @classmethod
+    def cardinal(cls, name, a, b, c, d, n0, nk, sense_k=1):
+        """One of the focal lengths, focal distances, principal or nodal points, by name
+        (for a layout with power: c must not vanish)."""
+        def power():
+            return cls.power(a, b, c, d)
+
+        def front():
+            return cls.front_principal_point(a, b, c, d, n0)
+
+        def back():
+            return cls.back_principal_point(a, b, c, d, nk)
+
+        def shift():
+            return cls.nodal_shift(a, b, c, d, n0, nk, sense_k)
+
+        table = {
+            "power": power,
+            "effective focal length": lambda: 1 / power(),
+            "focal length": lambda: nk / power(),
+            "object focal length": lambda: n0 / power(),
+            "back focal distance": lambda: cls.back_focal_distance(a, b, c, d, nk),
+            "front focal distance": lambda: cls.front_focal_distance(a, b, c, d, n0),
+            "front principal point": front,
+            "back principal point": back,
+            "front nodal point": lambda: front() + sense_k * shift(),
+            "back nodal point": lambda: back() + shift(),
+        }
+        return table[name]()
+
     @staticmethod
     def conjugate_denominator(a, b, c, d, object_tau):
         return c * object_tau + d

@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from ..errors import LayoutError, LayoutFileError, LayoutNameError, LayoutUnitError
+from ..errors import LayoutFileError, LayoutNameError, LayoutUnitError
 from ..errors import LayoutValueError, Span
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion

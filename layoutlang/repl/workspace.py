@@ -204,10 +204,12 @@ class Workspace:
         if path is None:
             raise LayoutValueError("no file to save to yet",
                                    expected='a file name: save "my_layout.lay"')
-        text = unparse(self.statements)
+        from ..formatter import format_text  # the same canonical layout as `layoutlang format`
+
+        text = format_text(self.header + unparse(self.statements), str(path))
         if parse(text, str(path)).statements != self.statements:  # never write what won't load
             raise LayoutValueError("the layout cannot be written back as a script exactly")
-        write_atomically(path, self.header + text)
+        write_atomically(path, text)
         self.path, self.saved = path, self.statements
         if self.base is None:
             self.base = path.parent

@@ -18,16 +18,12 @@ from ..checks import CheckResult
 from ..engines.firstorder import FirstOrder
 from ..interpret.interpreter import Program
 from ..quantities import REPORT_ORDER
-from ..system import IDEAL, MIRROR, System
+from ..system import System
 from ..testing import format_number
-from .text import SIGN_CONVENTION, describe_value
+from .text import LAYOUT_HEADINGS, SIGN_CONVENTION, describe_value, layout_rows
 
 __all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
            "latex_document"]
-
-LAYOUT_HEADINGS = ["#", "boundary", "shape", "light then in", "index", "then gap",
-                   "clear diameter"]
-
 
 @dataclass
 class Sections:
@@ -57,27 +53,6 @@ class Document:
 
 def _length(value: Any, units: str) -> str:
     return f"{format_number(value)} {units}"
-
-
-def layout_rows(system: System) -> list[list[str]]:
-    """One row per boundary, in the order the light meets them."""
-    units = system.units
-    indices = system.indices()
-    rows = []
-    for i, boundary in enumerate(system.boundaries):
-        if boundary.kind == IDEAL:
-            shape = (f"thin lens, focal length {_length(1 / boundary.power, units)}"
-                     if boundary.power else "thin lens, no power")
-        else:
-            shape = "flat" if boundary.curvature == 0 else \
-                f"radius {_length(1 / boundary.curvature, units)}"
-            if boundary.kind == MIRROR:
-                shape = "mirror, " + shape
-        gap = _length(system.gaps[i], units) if i < len(system.gaps) else "-"
-        clear = "-" if boundary.clear_diameter is None else _length(boundary.clear_diameter, units)
-        rows.append([str(i + 1), boundary.name, shape, boundary.medium_after,
-                     format_number(indices[i + 1]), gap, clear])
-    return rows
 
 
 def setting_lines(system: System) -> list[str]:

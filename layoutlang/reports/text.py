@@ -15,7 +15,7 @@ from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
 from ..testing import format_number
 
-__all__ = ["SIGN_CONVENTION", "layout_table", "first_order_table", "expectation_lines",
+__all__ = ["SIGN_CONVENTION", "LAYOUT_HEADINGS", "layout_rows", "layout_table", "first_order_table", "expectation_lines",
            "full_report", "describe_value"]
 
 SIGN_CONVENTION = (
@@ -34,10 +34,15 @@ def _length(value, units: str) -> str:
     return f"{format_number(value)} {units}"
 
 
-def layout_table(system: System) -> list[str]:
+LAYOUT_HEADINGS = ["#", "boundary", "shape", "light then in", "index", "then gap",
+                   "clear diameter"]
+
+
+def layout_rows(system: System) -> list[list[str]]:
+    """One row per boundary, in the order the light meets them (under LAYOUT_HEADINGS)."""
     units = system.units
-    rows = [["#", "boundary", "shape", "light then in", "index", "then gap", "clear diameter"]]
     indices = system.indices()
+    rows = []
     for i, boundary in enumerate(system.boundaries):
         if boundary.kind == IDEAL:
             shape = f"thin lens, focal length {_length(1 / boundary.power, units)}" \
@@ -51,8 +56,14 @@ def layout_table(system: System) -> list[str]:
         clear = "-" if boundary.clear_diameter is None else _length(boundary.clear_diameter, units)
         rows.append([str(i + 1), boundary.name, shape, boundary.medium_after,
                      format_number(indices[i + 1]), gap, clear])
-    lines = [f"  light starts in {system.start_medium} (index {format_number(indices[0])})"]
-    return lines + _table(rows)
+    return rows
+
+
+def layout_table(system: System) -> list[str]:
+    """The boundaries as an aligned text table, after the starting medium."""
+    start = format_number(system.indices()[0])
+    lines = [f"  light starts in {system.start_medium} (index {start})"]
+    return lines + _table([LAYOUT_HEADINGS] + layout_rows(system))
 
 
 def _setting_lines(system: System) -> list[str]:

@@ -143,7 +143,6 @@ def conjugate_equation(part: SymbolicPart, name: str = "conjugate equation") -> 
     thin-lens and mirror forms."""
     import sympy as sp
 
-    layout = layout_for(part)
     result = Derived(name, "equation")
     obj = part.system.object
     if obj.distance is None:

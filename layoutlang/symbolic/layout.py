@@ -16,7 +16,7 @@ from typing import Any, Callable
 from ..engines import paraxial
 from ..engines.firstorder import Unavailable
 from ..engines.paraxial import TRANSFER, Step, formulas
-from ..system import Boundary, Medium, ObjectSpec, StopSpec, System
+from ..system import Medium, ObjectSpec, StopSpec, System
 from .algebra import Ratio, RingContext, TooLarge
 from .convert import make_context, to_ratio
 
@@ -186,24 +186,7 @@ class SymbolicLayout:
         a, b, c, d = self._matrix()
         if c.is_zero():
             return Unavailable("none: the layout is afocal")
-        n0, nk = self.n0, self.nk
-        power = formulas.power(a, b, c, d)
-        front = formulas.front_principal_point(a, b, c, d, n0)
-        back = formulas.back_principal_point(a, b, c, d, nk)
-        shift = formulas.nodal_shift(a, b, c, d, n0, nk, self.sense_k)
-        table = {
-            "power": lambda: power,
-            "effective focal length": lambda: 1 / power,
-            "focal length": lambda: nk / power,
-            "object focal length": lambda: n0 / power,
-            "back focal distance": lambda: formulas.back_focal_distance(a, b, c, d, nk),
-            "front focal distance": lambda: formulas.front_focal_distance(a, b, c, d, n0),
-            "front principal point": lambda: front,
-            "back principal point": lambda: back,
-            "front nodal point": lambda: front + self.sense_k * shift,
-            "back nodal point": lambda: back + shift,
-        }
-        return table[name]()
+        return formulas.cardinal(name, a, b, c, d, self.n0, self.nk, self.sense_k)
 
     def _object_tau(self) -> Ratio | None:
         distance = self.ring_system.object.distance

@@ -157,21 +157,11 @@ def _matrix_formula(quantity: str, abcd: tuple, n0: Any, nk: Any, system: System
         if quantity == "image distance":
             return formulas.image_distance(a, b, c, d, tau0, nk)
         return formulas.magnification(a, b, c, d, tau0)
-    power = formulas.power(a, b, c, d)
-    table = {
-        "power": lambda: power,
-        "effective focal length": lambda: 1 / power,
-        "focal length": lambda: nk / power,
-        "object focal length": lambda: n0 / power,
-        "back focal distance": lambda: formulas.back_focal_distance(a, b, c, d, nk),
-        "image distance": lambda: formulas.back_focal_distance(a, b, c, d, nk),
-        "front focal distance": lambda: formulas.front_focal_distance(a, b, c, d, n0),
-        "front principal point": lambda: formulas.front_principal_point(a, b, c, d, n0),
-        "back principal point": lambda: formulas.back_principal_point(a, b, c, d, nk),
-    }
-    if quantity not in table:
+    if quantity == "image distance":  # object at infinity: the image is at the back focus
+        quantity = "back focal distance"
+    if quantity not in formulas.CARDINAL:
         raise KeyError(quantity)
-    return table[quantity]()
+    return formulas.cardinal(quantity, a, b, c, d, n0, nk, system.directions()[-1])
 
 
 def with_exact_values(system: System) -> System:
