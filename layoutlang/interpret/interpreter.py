@@ -551,23 +551,29 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
                    POWER: lambda e: self.power(e, "the expected value"),
                    NUMBER: lambda e: self.number(e, "the expected value")}[info.kind]
         expected = convert(node.value)
-        tolerance, relative = None, False
-        if node.tolerance is not None:
-            if node.op != "=":
-                raise LayoutValueError("a tolerance only goes with '='", self.span(node.tolerance))
-            measure = self.value(node.tolerance.value)
-            if measure.relative:
-                tolerance, relative = measure.value, True
-            else:
-                tolerance = convert(node.tolerance.value)
-            self.positive(tolerance, node.tolerance.value, "a tolerance", allow_zero=True)
-        elif node.op == "=":
-            raise LayoutValueError(
-                "an '=' expectation needs a tolerance", self.span(node),
-                expected="'± 0.05' or 'within 1%' after the value")
+        tolerance, relative = self.tolerance(node, convert)
         span = self.span(node)
         return Expectation(info.name, info.kind, node.op, expected, tolerance, relative, span,
                            span.line_text.strip(), request=request)
+
+    def tolerance(self, node: t.Expect, convert, percent_allowed: bool = True):
+        """(tolerance, relative) of an expectation: '± T' in the quantity's unit, or a
+        percentage (relative) where `percent_allowed`; '=' must have one, bounds none."""
+        if node.tolerance is None:
+            if node.op == "=":
+                raise LayoutValueError(
+                    "an '=' expectation needs a tolerance", self.span(node),
+                    expected="'± 0.05' or 'within 1%' after the value")
+            return None, False
+        if node.op != "=":
+            raise LayoutValueError("a tolerance only goes with '='", self.span(node.tolerance))
+        measure = self.value(node.tolerance.value)
+        if measure.relative and percent_allowed:
+            tolerance, relative = measure.value, True
+        else:
+            tolerance, relative = convert(node.tolerance.value), False
+        self.positive(tolerance, node.tolerance.value, "a tolerance", allow_zero=True)
+        return tolerance, relative
 
 
 def _literal(node: t.Expr) -> str:

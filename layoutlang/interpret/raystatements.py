@@ -156,19 +156,7 @@ class RayStatements:
             kind = info.kind
             convert = lambda e: self.length(e, "the expected value")  # noqa: E731
         expected = convert(node.value)
-        tolerance, relative = None, False
-        if node.tolerance is not None:
-            if node.op != "=":
-                raise LayoutValueError("a tolerance only goes with '='", self.span(node.tolerance))
-            measure = self.value(node.tolerance.value)
-            if measure.relative and kind != PERCENT:
-                tolerance, relative = measure.value, True
-            else:
-                tolerance = convert(node.tolerance.value)
-            self.positive(tolerance, node.tolerance.value, "a tolerance", allow_zero=True)
-        elif node.op == "=":
-            raise LayoutValueError("an '=' expectation needs a tolerance", self.span(node),
-                                   expected="'± 0.05' or 'within 1%' after the value")
+        tolerance, relative = self.tolerance(node, convert, percent_allowed=kind != PERCENT)
         span = self.span(node)
         return Expectation(info.name, kind, node.op, expected, tolerance, relative, span,
                            span.line_text.strip(), field=fraction, scale=scale,

@@ -189,18 +189,13 @@ class SymbolicStatements:
         for node, (self.file, self.lines) in state["expects"]:
             name = self._derivable(node.quantity)
             symbol = self._symbol(node.symbol)
-            expected = to_float(self.value(node.value).value, nominal, self.span(node.value))
-            tolerance, relative = None, False
-            if node.tolerance is not None:
-                if node.op != "=":
-                    raise LayoutValueError("a tolerance only goes with '='",
-                                           self.span(node.tolerance))
-                measure = self.value(node.tolerance.value)
-                relative = measure.relative
-                tolerance = to_float(measure.value, nominal, self.span(node.tolerance.value))
-            elif node.op == "=":
-                raise LayoutValueError("an '=' expectation needs a tolerance", self.span(node),
-                                       expected="'± 0.05' or 'within 1%' after the value")
+            def convert(expr, nominal=nominal):
+                return to_float(self.value(expr).value, nominal, self.span(expr))
+
+            expected = convert(node.value)
+            tolerance, relative = self.tolerance(node, convert)
+            if relative:
+                tolerance = to_float(tolerance, nominal, self.span(node.tolerance.value))
             key = sensitivity_name(name, symbol)
             if key not in sensitivities:
                 from ..symbolic.sensitivity import sensitivity_at_nominal
