@@ -83,7 +83,15 @@ def describe_terminal(name: str) -> str:
     return f"'{literal}'" if literal is not None else name.lower()
 
 
+#: What a script's statements start with, named when the parser wants a new statement (the
+#: full list there also holds the session's words, which would only confuse a script's reader).
+_STATEMENT_START = ("a statement such as 'surface', 'mirror', 'lens', 'gap', 'object', 'stop', "
+                    "'image', 'medium', 'start', 'wavelengths', 'expect' or 'report'")
+
+
 def _expected_words(names) -> str:
+    if {"SURFACE", "GAP", "OBJECT"} <= set(names):
+        return _STATEMENT_START
     described = sorted({describe_terminal(n) for n in names if not n.startswith("__")})
     if len(described) > 12:
         described = described[:12] + ["…"]
