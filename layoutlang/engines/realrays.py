@@ -286,7 +286,14 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                 else:
                     np.subtract(b, pk, out=t)
                 np.divide(w, t, out=t)  # τ
-                if step.action != _REFRACT and not math.isfinite(t.sum()):
+                # C / (B + s sqrt(D)) cancels when B and s sqrt(D) have opposite signs (a ray
+                # that starts on this surface's own sphere away from its vertex, as inside a
+                # ball lens, gives 0/0 there); the same root is then (B - s sqrt(D)) / (c n²).
+                unstable = (b * s < 0.0) & np.isfinite(pk)
+                if unstable.any():
+                    n_here = n[unstable] if np.ndim(n) else n
+                    t[unstable] = (b[unstable] - s * pk[unstable]) / (c * n_here * n_here)
+                if not math.isfinite(t.sum()):  # D < 0: the ray passes the sphere by
                     _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
             np.multiply(kx, t, out=tmp)
             x += tmp

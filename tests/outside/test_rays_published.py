@@ -206,3 +206,30 @@ def test_petzval_radius_of_one_thin_lens_is_minus_n_f():
     # common practice: a positive thin lens in air curves its Petzval surface towards itself.
     sums = seidel.seidel(_program(_thin_lens(1.6, 80.0, 0.3)).system)
     assert sums.petzval_radius == pytest.approx(-1.6 * 80.0, rel=1e-6)
+
+
+# --- ball lens: both faces on one sphere ---------------------------------------------------------
+# A ray parallel to the axis at height h leaves a sphere with the same distance h from its
+# centre (the path inside is symmetric about the centre), deviated by 2 (I - I'), sin I = h/R,
+# n sin I' = sin I; so it crosses the axis h / sin(2 (I - I')) beyond the centre (common
+# practice: plane geometry of the sphere and Snell's law). The exit face starts on the entry
+# face's sphere, the case in which a naive root of the intersection quadratic cancels to 0/0.
+
+
+@pytest.mark.parametrize("height", [0.03, 0.075, 0.106, 0.15, 0.3])
+def test_ball_lens_exact_focus_matches_the_closed_form(height: float) -> None:
+    n, radius = 1.746, 1.0
+    program = _program(
+        f"medium ball index {n}\nobject at infinity\nstart in air\n"
+        f"surface entry radius {radius} into ball\ngap {2 * radius}\n"
+        f"surface exit radius {-radius} into air\nstop at entry, diameter 0.8\nimage at focus")
+    geo = realrays.geometry(program.system)
+    rays = realrays.Rays.start(0.0, [height], -1.0, 0.0, 0.0, 1.0)
+    realrays.trace(rays, geo, program.system.indices())
+    assert rays.status.tolist() == [realrays.OK]
+    # where the traced ray crosses the axis, measured from the ball's centre
+    y, z, ky, kz = rays.y[0], rays.z[0], rays.ky[0], rays.kz[0]
+    crossing = z - y * kz / ky - radius
+    incidence = math.asin(height / radius)
+    refracted = math.asin(math.sin(incidence) / n)
+    assert crossing == pytest.approx(height / math.sin(2 * (incidence - refracted)), rel=1e-10)
