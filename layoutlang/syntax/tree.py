@@ -34,13 +34,40 @@ class Pos:
 
 NO_POS = Pos(0, 0, 0, 0)
 
+_PENDING: set[type] = set()
 
-@dataclass(frozen=True)
+
+def node(cls: type) -> type:
+    """Declare a syntax-tree class: it becomes a frozen dataclass when first instantiated.
+
+    Building every frozen dataclass at import costs ~30 ms (six generated methods each) while a
+    script uses a handful of statement kinds, and a numeric check must start fast.
+    """
+    _PENDING.add(cls)
+    return cls
+
+
+def realize(cls: type) -> type:
+    """Make `cls` (and its bases) a frozen dataclass now, if it is not one yet."""
+    if cls in _PENDING:
+        for base in reversed(cls.__mro__[1:]):
+            realize(base)
+        _PENDING.discard(cls)
+        dataclass(frozen=True)(cls)
+    return cls
+
+
+@node
 class Node:
     pos: Pos = field(default=NO_POS, compare=False, repr=False, kw_only=True)
 
+    def __new__(cls, *args, **kwargs):
+        if cls in _PENDING:
+            realize(cls)
+        return object.__new__(cls)
 
-@dataclass(frozen=True)
+
+@node
 class Ident(Node):
     """A user-chosen name (surface, medium, constant, library)."""
 
@@ -50,12 +77,12 @@ class Ident(Node):
 # --- expressions -----------------------------------------------------------------------------
 
 
-@dataclass(frozen=True)
+@node
 class Expr(Node):
     pass
 
 
-@dataclass(frozen=True)
+@node
 class Number(Expr):
     """A literal as written (the text keeps 0.1 exact for symbolic work) and its unit, if any."""
 
@@ -63,24 +90,24 @@ class Number(Expr):
     unit: str | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Name(Expr):
     id: str
 
 
-@dataclass(frozen=True)
+@node
 class Binary(Expr):
     op: str  # one of + - * / ^
     left: Expr
     right: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Negate(Expr):
     operand: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Call(Expr):
     func: str
     args: tuple[Expr, ...]
@@ -89,50 +116,50 @@ class Call(Expr):
 # --- statements ------------------------------------------------------------------------------
 
 
-@dataclass(frozen=True)
+@node
 class Statement(Node):
     pass
 
 
-@dataclass(frozen=True)
+@node
 class Title(Statement):
     text: str
 
 
-@dataclass(frozen=True)
+@node
 class Units(Statement):
     unit: Ident
 
 
-@dataclass(frozen=True)
+@node
 class Let(Statement):
     name: Ident
     value: Expr
 
 
-@dataclass(frozen=True)
+@node
 class MediumIndex(Statement):
     name: Ident
     index: Expr
 
 
-@dataclass(frozen=True)
+@node
 class StartMedium(Statement):
     medium: Ident
 
 
-@dataclass(frozen=True)
+@node
 class ObjectAtInfinity(Statement):
     field_angle: Expr | None = None
 
 
-@dataclass(frozen=True)
+@node
 class ObjectBefore(Statement):
     distance: Expr
     height: Expr | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Shape(Node):
     """How a boundary is curved: kind is 'radius', 'curvature' or 'flat'."""
 
@@ -140,7 +167,7 @@ class Shape(Node):
     value: Expr | None = None
 
 
-@dataclass(frozen=True)
+@node
 class BoundaryStatement(Statement):
     """`surface`, `mirror` or `lens` (an ideal thin lens of given strength)."""
 
@@ -153,12 +180,12 @@ class BoundaryStatement(Statement):
     clear_diameter: Expr | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Gap(Statement):
     length: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Stop(Statement):
     """The aperture stop: at a surface, or a distance before/after one."""
 
@@ -169,23 +196,23 @@ class Stop(Statement):
     size: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Image(Statement):
     distance: Expr | None = None  # None: at the paraxial focus
 
 
-@dataclass(frozen=True)
+@node
 class Wavelength(Node):
     value: Expr
     primary: bool = False
 
 
-@dataclass(frozen=True)
+@node
 class Wavelengths(Statement):
     items: tuple[Wavelength, ...]
 
 
-@dataclass(frozen=True)
+@node
 class Quantity(Node):
     """A quantity named in plain words, e.g. ('focal', 'length') or ('f-number',)."""
 
@@ -196,13 +223,13 @@ class Quantity(Node):
         return " ".join(self.words)
 
 
-@dataclass(frozen=True)
+@node
 class Tolerance(Node):
     kind: str  # '±' | 'within'
     value: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Expect(Statement):
     quantity: Quantity
     op: str  # = < <= > >=
@@ -210,25 +237,25 @@ class Expect(Statement):
     tolerance: Tolerance | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Report(Statement):
     quantities: tuple[Quantity, ...] = ()
 
 
-@dataclass(frozen=True)
+@node
 class Hazard(Statement):
     """A declared hazard (laser, eye, sunlight): reports then carry the usual caution."""
 
     kind: Ident
 
 
-@dataclass(frozen=True)
+@node
 class Use(Statement):
     target: str
     is_file: bool
 
 
-@dataclass(frozen=True)
+@node
 class Script(Node):
     """A parsed file: its statements and the file name errors should mention."""
 
@@ -240,12 +267,12 @@ class Script(Node):
 # --- commands of the interactive session (grammar/session.lark) -------------------------------
 
 
-@dataclass(frozen=True)
+@node
 class SessionCommand(Statement):
     """A command of `layoutlang repl`; a script file cannot use one."""
 
 
-@dataclass(frozen=True)
+@node
 class Change(SessionCommand):
     """`change ...`: target is 'named' (a boundary, medium or constant by its name), 'medium',
     'gap', 'object' or 'stop'; prop the property in words ('radius', 'clear diameter', 'flat',
@@ -257,7 +284,7 @@ class Change(SessionCommand):
     value: Expr | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Insert(SessionCommand):
     """`insert <surface|mirror|lens|gap statement> before|after NAME`."""
 
@@ -266,7 +293,7 @@ class Insert(SessionCommand):
     anchor: Ident
 
 
-@dataclass(frozen=True)
+@node
 class Remove(SessionCommand):
     """`remove NAME` (gap None) or `remove gap before|after NAME` (gap = 'before'/'after')."""
 
@@ -274,38 +301,38 @@ class Remove(SessionCommand):
     gap: str | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Rename(SessionCommand):
     old: Ident
     new: Ident
 
 
-@dataclass(frozen=True)
+@node
 class Undo(SessionCommand):
     pass
 
 
-@dataclass(frozen=True)
+@node
 class Redo(SessionCommand):
     pass
 
 
-@dataclass(frozen=True)
+@node
 class Show(SessionCommand):
     what: str  # 'table' | 'script' | 'results' | 'expectations'
 
 
-@dataclass(frozen=True)
+@node
 class Save(SessionCommand):
     path: str | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Help(SessionCommand):
     pass
 
 
-@dataclass(frozen=True)
+@node
 class Leave(SessionCommand):
     pass
 
@@ -313,7 +340,7 @@ class Leave(SessionCommand):
 # --- exact rays and aberrations (grammar/rays.lark) ------------------------------------------
 
 
-@dataclass(frozen=True)
+@node
 class Sample(Statement):
     """`sample pupils ...`, `sample fields ...` or `sample grid N`: what the ray report traces."""
 
@@ -321,21 +348,21 @@ class Sample(Statement):
     values: tuple[Expr, ...]
 
 
-@dataclass(frozen=True)
+@node
 class FocusTolerance(Statement):
     """`focus tolerance D`: judge the real focus and image height against D."""
 
     value: Expr
 
 
-@dataclass(frozen=True)
+@node
 class ReportRays(Statement):
     """`report exact rays` or `report seidel sums`."""
 
     what: str  # 'exact rays' | 'seidel sums'
 
 
-@dataclass(frozen=True)
+@node
 class ExpectRays(Statement):
     """`expect Q at field F [at wavelength W] < V` or `expect Q < V depth of focus` (scale
     'depth of focus'); `wavelength` is a WavelengthRef (grammar/materials.lark) or None."""
@@ -352,7 +379,7 @@ class ExpectRays(Statement):
 # --- real materials and several wavelengths (grammar/materials.lark) ---------------------------
 
 
-@dataclass(frozen=True)
+@node
 class MediumModel(Statement):
     """A medium with a dispersion model; kind is 'model glass' (values: index, Abbe number),
     'glass code' (code: the digits as written), 'sellmeier' (pairs of B and λᵢ, or of B and C
@@ -369,14 +396,14 @@ class MediumModel(Statement):
     relative_to: str | None = None  # 'air' | 'vacuum' | None (not said)
 
 
-@dataclass(frozen=True)
+@node
 class Surroundings(Statement):
     """`layout in standard air` | `layout in vacuum`."""
 
     environment: str  # 'standard air' | 'vacuum'
 
 
-@dataclass(frozen=True)
+@node
 class Achromat(Statement):
     """`achromat from FIRST and SECOND[, focal length F]`: the thin-lens achromat condition."""
 
@@ -385,7 +412,7 @@ class Achromat(Statement):
     focal_length: Expr | None = None
 
 
-@dataclass(frozen=True)
+@node
 class WavelengthRef(Node):
     """A wavelength named in a qualifier: a spectral line letter or `let` name (name, with
     its apostrophe if primed), or a number with a length unit."""
@@ -394,7 +421,7 @@ class WavelengthRef(Node):
     number: Number | None = None
 
 
-@dataclass(frozen=True)
+@node
 class Qualifier(Node):
     """`of MEDIUM`, `at wavelength W`, `between W and W`, `across W, W and W`."""
 
@@ -403,14 +430,14 @@ class Qualifier(Node):
     wavelengths: tuple[WavelengthRef, ...] = ()
 
 
-@dataclass(frozen=True)
+@node
 class QualifiedExpect(Expect):
     """An `expect` whose quantity carries qualifiers (medium, wavelengths)."""
 
     qualifiers: tuple[Qualifier, ...] = ()
 
 
-@dataclass(frozen=True)
+@node
 class QualifiedReport(Statement):
     """`report QUANTITY QUALIFIER...`: one quantity at stated wavelengths or of a medium."""
 
@@ -427,7 +454,7 @@ __all__ += ["Symbols", "NominalValue", "Nominal", "Derive", "Condition", "Solve"
             "ExpectSensitivity"]
 
 
-@dataclass(frozen=True)
+@node
 class Symbols(Statement):
     """`symbols n1 n2 R positive`: free symbols and an optional assumption ('positive'/'real')."""
 
@@ -435,31 +462,31 @@ class Symbols(Statement):
     assumption: str | None = None
 
 
-@dataclass(frozen=True)
+@node
 class NominalValue(Node):
     name: Ident
     value: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Nominal(Statement):
     """`nominal R = 20, a = 100`: the values a symbolic layout is checked at."""
 
     values: tuple[NominalValue, ...]
 
 
-@dataclass(frozen=True)
+@node
 class Derive(Statement):
     quantities: tuple[Quantity, ...]
 
 
-@dataclass(frozen=True)
+@node
 class Condition(Node):
     quantity: Quantity
     value: Expr
 
 
-@dataclass(frozen=True)
+@node
 class Solve(Statement):
     """`solve R so that image distance = 40 [and ...]`."""
 
@@ -467,7 +494,7 @@ class Solve(Statement):
     conditions: tuple[Condition, ...]
 
 
-@dataclass(frozen=True)
+@node
 class Sensitivity(Statement):
     """`sensitivity of image distance to d, R`."""
 
@@ -475,7 +502,7 @@ class Sensitivity(Statement):
     symbols: tuple[Ident, ...]
 
 
-@dataclass(frozen=True)
+@node
 class ExpectSensitivity(Statement):
     """`expect sensitivity of image distance to d < 1.5`."""
 
