@@ -248,3 +248,17 @@ def test_colour_section_of_a_constant_layout_says_why_there_is_no_colour() -> No
     assert "axial colour between F and C          0 mm" in text
     assert "note: every medium here has a constant index, so no colour shows" in text
     assert "surroundings" not in text  # indices as written: nothing to say about air
+
+
+def test_the_achromat_condition_uses_f_and_c_when_listed_beside_other_lines() -> None:
+    # The Abbe number is defined over F and C around d (common practice; ISO 7944 names the
+    # lines); a g line listed as well must not replace F as the blue end.
+    program = layoutlang.loads("layout in standard air\nwavelengths d primary, F, C, g\n"
+                    "medium crown glass code 517642\nmedium flint glass code 620364\n"
+                    "start in air\nsurface a radius 50 into crown\ngap 4\n"
+                    "surface b radius -50 into flint\ngap 2\nsurface c flat into air\n"
+                    "achromat from crown and flint, focal length 100\n")
+    (achromat,) = program.colour.achromats
+    assert achromat.labels == ("F", "d", "C")
+    n_d, n_f, n_c = achromat.first_indices[1], achromat.first_indices[0], achromat.first_indices[2]
+    assert (n_d - 1) / (n_f - n_c) == pytest.approx(64.2, abs=0.05)
