@@ -463,6 +463,9 @@ def _focus_verdict(rows, dof: Value, tolerance: float | None, units: str) -> str
                                 f"so ±{_fmt(dof / 2, units)})")
     ratio = worst / limit if limit else math.inf
     tail = f"; {len(lost)} marginal ray(s) lost" if lost else ""
+    if not isinstance(dof, Unavailable) and dof:
+        # the measure `expect marginal focus shift < N depth of focus` compares
+        tail = f"; that is {worst / dof:.3g} depth of focus" + tail
     if worst <= limit:
         return (f"paraxial focus holds: the real focus stays within {what} "
                 f"(largest shift {_fmt(worst, units)}){tail}")
