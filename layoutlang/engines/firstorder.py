@@ -53,7 +53,21 @@ class FirstOrder:
     notes: tuple[str, ...] = ()
 
     def __getitem__(self, name: str) -> Value:
-        return self.values[name]
+        try:
+            return self.values[name]
+        except KeyError:
+            pass
+        from ..errors import LayoutNameError  # the error path only
+        from ..quantities import ALIASES, suggestion
+
+        if ALIASES.get(name) in self.values:
+            return self.values[ALIASES[name]]
+        close = suggestion(name)
+        raise LayoutNameError(
+            f"{name!r} is not a first-order quantity",
+            hint=(f"did you mean {close!r}? " if close and close in self.values else "")
+            + "exact-ray, Seidel and colour quantities are evaluated by a script's 'expect' "
+              "and 'report' lines (layoutlang.check, layoutlang run)")
 
 
 def _finite(values: dict[str, Value]) -> dict[str, Value]:
