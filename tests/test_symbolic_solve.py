@@ -88,3 +88,27 @@ def test_without_nominal_values_roots_stay_general() -> None:
     text = ONE.replace("nominal n1 = 1, n2 = 1.5, R = 20, a = 100\n", "")
     part, (solution,) = _solve(text + "solve R so that image distance = 40\n")
     assert solution.general and all(r.physical is None for r in solution.roots)
+
+
+def test_fewer_conditions_than_unknowns_gives_a_family_not_a_crash() -> None:
+    # n1/a + n2/s' = (n2 - n1)/R with n1 = 1, n2 = 1.5, s' = 40: R = 40 a / (3 a + 80)
+    # (Hecht, 2017, Optics, 5th ed., eq. 5.8, from memory)
+    _, (solution,) = _solve(ONE + "solve R, a so that image distance = 40\n")
+    (root,) = solution.roots
+    R, a = sp.symbols("R a", positive=True)
+    assert sp.simplify(root.values[R] - 40 * a / (3 * a + 80)) == 0
+    assert root.physical is None and "each value of a" in root.why
+
+
+def test_the_design_notes_script_without_nominal_values_derives_and_solves() -> None:
+    # The one-boundary script of the design notes: no nominal values, so roots stay formulas.
+    from layoutlang.symbolic import render
+
+    text = ONE.replace("nominal n1 = 1, n2 = 1.5, R = 20, a = 100\n", "") + (
+        "derive image distance\nderive conjugate equation\n"
+        "solve R so that image distance = 40\n")
+    outcome = render.carry_out(loads(text))
+    for write in (render.text, render.latex, render.markdown, render.json_text,
+                  render.python_code):
+        assert write(outcome).strip()
+    assert "n1/a + n2/s' = (n2 - n1)/R" in render.text(outcome)

@@ -140,16 +140,22 @@ def _root_text(solution: Solution) -> list[str]:
     for general in solution.general:
         lines.append("  in general: " + ", ".join(f"{s} = {_plain(v)}" for s, v in general.items()))
     for root in solution.roots:
-        values = ", ".join(
-            f"{s} = {_plain(v)}" + ("" if not root.exact or getattr(v, "is_Rational", False) and
-                                    getattr(v, "is_Integer", False) else f" ≈ {_approx(v)}")
-            for s, v in root.values.items())
+        values = ", ".join(f"{s} = {_plain(v)}" + _approx_suffix(v, root.exact)
+                           for s, v in root.values.items())
         verdict = {True: "physical", False: "not physical", None: "not judged"}[root.physical]
         exactness = "exact" if root.exact else "numeric"
         lines.append(f"  {values}   ({exactness}; {verdict}{': ' + root.why if root.why else ''})")
     if solution.message:
         lines.append(f"  {solution.message}")
     return lines
+
+
+def _approx_suffix(value: Any, exact: bool) -> str:
+    """' ≈ 12.5' after an exact root that is a number but not a whole one; nothing after a
+    numeric root, a whole number, or a root that still holds symbols (a general formula)."""
+    if not exact or getattr(value, "is_Integer", False) or getattr(value, "free_symbols", None):
+        return ""
+    return f" ≈ {_approx(value)}"
 
 
 def _approx(value: Any) -> str:
@@ -266,9 +272,14 @@ def latex(outcome: Outcome) -> str:
     return "\n".join(out).rstrip() + "\n"
 
 
+#: Characters pdflatex cannot take literally in text, and what to write instead.
+_TEX_TEXT = {"\\": r"\textbackslash{}", "^": r"\^{}", "~": r"\~{}", "≈": r"$\approx$",
+             "±": r"$\pm$", "→": r"$\rightarrow$", "′": "'", "≤": r"$\leq$", "≥": r"$\geq$"}
+
+
 def _tex_escape(text: str) -> str:
-    return re.sub(r"([&%$#_{}^~\\])", lambda m: {"\\": r"\textbackslash{}", "^": r"\^{}",
-                                                  "~": r"\~{}"}.get(m[1], "\\" + m[1]), text)
+    return re.sub(r"([&%$#_{}^~\\≈±→′≤≥])",
+                  lambda m: _TEX_TEXT.get(m[1], "\\" + m[1]), text)
 
 
 # --- Python ----------------------------------------------------------------------------------

@@ -165,6 +165,11 @@ def _judge(part: SymbolicPart, layout, ratios: list, values: dict, exact: bool) 
 
     reasons = []
     numbers = {}
+    free = set().union(*(getattr(v, "free_symbols", set()) for v in values.values()))
+    if free:  # fewer conditions than unknowns: a family of roots, not one layout
+        names = ", ".join(sorted(map(str, free)))
+        return Root(values, exact, None, f"one root for each value of {names}: add a condition "
+                                         "per unknown to fix it")
     for symbol, value in values.items():
         number = complex(sp.N(value, 20))
         if abs(number.imag) > 1e-9 * max(1.0, abs(number)):
