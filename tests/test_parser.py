@@ -6,7 +6,8 @@ from pathlib import Path
 
 import pytest
 
-from layoutlang.errors import LayoutSyntaxError
+import layoutlang
+from layoutlang.errors import LayoutError, LayoutSyntaxError
 from layoutlang.syntax import tree as t
 from layoutlang.syntax.mistakes import EXAMPLES
 from layoutlang.syntax.parser import keyword_words, parse
@@ -269,3 +270,19 @@ def test_the_fixture_covers_every_alias_of_the_core_grammar() -> None:
             if isinstance(node, Tree):
                 seen.add(str(node.data))
     assert aliases - seen == set()
+
+
+@pytest.mark.parametrize("expression", [
+    "+".join(["1"] * 3000),           # left-nested sum, deeper than Python's default limit
+    "-" * 3000 + "5",                 # a tower of signs
+])
+def test_deep_but_reasonable_nesting_evaluates(expression: str) -> None:
+    program = layoutlang.loads(f"start in air\nlens l focal length {expression}\n")
+    assert len(program.system.boundaries) == 1
+
+
+@pytest.mark.parametrize("expression", ["+".join(["1"] * 30000), "-" * 30000 + "5"])
+def test_absurd_nesting_is_a_located_error_not_a_crash(expression: str) -> None:
+    with pytest.raises(LayoutError) as caught:
+        layoutlang.loads(f"start in air\nlens l focal length {expression}\n", file="deep.lay")
+    assert caught.value.line == 2 and "nested too deeply" in caught.value.message

@@ -199,12 +199,20 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
 
     # --- the run -----------------------------------------------------------------------------
     def run(self) -> Program:
-        for statement in self.script.statements:
-            self.execute(statement)
-        try:
-            return self.finish()
-        except TypeError as error:  # a symbol where a number must be compared
-            raise self.symbolic_type_error(error, None) from None
+        from ..nesting import TOO_DEEP, room_for_nesting
+
+        with room_for_nesting():
+            for statement in self.script.statements:
+                try:
+                    self.execute(statement)
+                except RecursionError:
+                    raise LayoutValueError(TOO_DEEP, self.span(statement)) from None
+            try:
+                return self.finish()
+            except TypeError as error:  # a symbol where a number must be compared
+                raise self.symbolic_type_error(error, None) from None
+            except RecursionError:
+                raise LayoutValueError(TOO_DEEP, self.span(self.script)) from None
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)

@@ -396,8 +396,25 @@ _BUILDER = _Builder()
 
 
 def build_script(parse_tree, file: str, text: str) -> t.Script:
-    """The syntax tree of one parsed file."""
-    statements = _BUILDER.transform(parse_tree)
+    """The syntax tree of one parsed file (statement by statement, so that a statement too
+    deeply nested to build is reported at its own line)."""
+    from lark.exceptions import VisitError
+
+    from ..errors import LayoutSyntaxError, Span
+    from ..nesting import TOO_DEEP, room_for_nesting
+
+    statements = []
+    with room_for_nesting():
+        for child in parse_tree.children:
+            try:
+                statements.append(_BUILDER.transform(child))
+            except (RecursionError, VisitError) as error:
+                if not isinstance(getattr(error, "orig_exc", error), RecursionError):
+                    raise
+                line = child.meta.line
+                line_text = text.split("\n")[line - 1] if line else ""
+                raise LayoutSyntaxError(TOO_DEEP, Span(file, line, child.meta.column,
+                                                       len(line_text) + 1, line_text)) from None
     return t.Script(file, tuple(statements), text=text, pos=t.Pos(1, 1, 1, 1))
 
 
