@@ -130,11 +130,39 @@ def lensmaker_equation(part: SymbolicPart) -> Derived:
     if power.expr is None:
         result.unavailable = power.unavailable or power.too_large
         return result
-    result.equation = sp.Eq(1 / sp.Symbol("f"), sp.factor(power.expr), evaluate=False)
+    published = _published_lensmaker(part.system, power.expr)
+    result.equation = sp.Eq(1 / sp.Symbol("f"), published if published is not None
+                            else sp.factor(power.expr), evaluate=False)
     result.expr = result.equation
     result.nominal_value = None
     result.notes = ["f is the effective focal length 1/power (the focal length in air)"]
+    if published is not None:
+        result.notes.append("in the published thick-lens form (Hecht, 2017, Optics, 5th ed., "
+                            "§6.2), checked equal to the traced power")
     return result
+
+
+def _published_lensmaker(system, power):
+    """(n − 1)[1/R1 − 1/R2 + (n − 1) d / (n R1 R2)] for one lens in air, built term by term so
+    it prints in the order the textbooks give; None for any other layout, or if it would not
+    equal the traced power exactly."""
+    import sympy as sp
+
+    from ..system import REFRACT
+
+    first, *rest = system.boundaries
+    if (len(rest) != 1 or {first.kind, rest[0].kind} != {REFRACT} or system.start_medium
+            != rest[0].medium_after or first.medium_after == system.start_medium):
+        return None
+    if sp.nsimplify(system.medium(system.start_medium).index) != 1:
+        return None
+    n = system.medium(first.medium_after).index
+    c1, c2, d = first.curvature, rest[0].curvature, system.gaps[0]
+    less_one = sp.Add(n, -1, evaluate=False)
+    bracket = sp.Add(c1, -c2, sp.Mul(less_one, d, c1, c2, 1 / n, evaluate=False),
+                     evaluate=False)
+    published = sp.Mul(less_one, bracket, evaluate=False)
+    return published if sp.cancel(sp.together(published - power)) == 0 else None
 
 
 def conjugate_equation(part: SymbolicPart, name: str = "conjugate equation") -> Derived:

@@ -124,7 +124,9 @@ def _symbol_line(part: SymbolicPart) -> str:
 
 
 def _built(d: Derived) -> bool:
-    return d.quantity == "conjugate equation"
+    """Whether the equation was built term by term in its published order (print it so)."""
+    return d.quantity == "conjugate equation" or (
+        d.quantity == "lensmaker equation" and any("published" in note for note in d.notes))
 
 
 def _left(d: Derived) -> str:

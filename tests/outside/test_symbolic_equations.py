@@ -142,3 +142,8 @@ def test_lensmaker_equation_form() -> None:
     R1, R2, n, d = part.symbols
     equation = derive(part, "lensmaker equation").equation
     assert _same(equation.rhs, (n - 1) * (1 / R1 - 1 / R2 + (n - 1) * d / (n * R1 * R2)))
+    # and it is printed in that published order, term by term
+    from layoutlang.symbolic import render
+
+    text = render.text(render.carry_out(loads(THICK + "derive lensmaker equation\n")))
+    assert "1/f = (n - 1)*(1/R1 - 1/R2 + (n - 1)*d/(R1*R2*n))" in text
