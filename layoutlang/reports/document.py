@@ -20,7 +20,8 @@ from ..interpret.interpreter import Program
 from ..quantities import REPORT_ORDER
 from ..system import System
 from ..testing import format_number
-from .text import LAYOUT_HEADINGS, SIGN_CONVENTION, describe_value, layout_rows
+from .text import (LAYOUT_HEADINGS, SIGN_CONVENTION, describe_value, image_plane_words,
+                   layout_rows)
 
 __all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
            "latex_document"]
@@ -76,8 +77,7 @@ def setting_lines(system: System) -> list[str]:
         size = (f"diameter {_length(stop.size, units)}" if stop.size_kind == "diameter" else
                 f"sized by {stop.size_kind} {format_number(stop.size)}")
         lines.append(f"stop {where}, {size}")
-    lines.append("image plane at the paraxial focus" if system.image.distance is None else
-                 f"image plane {_length(system.image.distance, units)} after the last boundary")
+    lines.append("image plane " + image_plane_words(system))
     if system.wavelengths:
         from ..measure import LENGTH_UNITS
 

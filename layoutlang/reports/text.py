@@ -15,7 +15,7 @@ from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
 from ..testing import format_number
 
-__all__ = ["SIGN_CONVENTION", "LAYOUT_HEADINGS", "layout_rows", "layout_table", "first_order_table", "expectation_lines",
+__all__ = ["image_plane_words", "SIGN_CONVENTION", "LAYOUT_HEADINGS", "layout_rows", "layout_table", "first_order_table", "expectation_lines",
            "full_report", "describe_value"]
 
 SIGN_CONVENTION = (
@@ -94,14 +94,22 @@ def _setting_lines(system: System) -> list[str]:
             place = f"{_length(stop.offset, units)} after {system.boundaries[stop.after].name}"
         lines.append(f"  stop: {place}, {size}")
     image = system.image
-    lines.append("  image plane: at the paraxial focus" if image.distance is None
-                 else f"  image plane: {_length(image.distance, units)} after the last boundary")
+    lines.append("  image plane: " + image_plane_words(system))
     if system.wavelengths:
         words = ", ".join(
             f"{format_number(w.value * _nm_per_unit(units))} nm" + (" (primary)" if w.primary else "")
             for w in system.wavelengths)
         lines.append(f"  wavelengths: {words}")
     return lines
+
+
+def image_plane_words(system: System) -> str:
+    """Where the image plane is, in words (no sign leaks into 'after')."""
+    distance = system.image.distance
+    if distance is None:
+        return "at the paraxial focus"
+    side = "after" if distance >= 0 else "before"
+    return f"{_length(abs(distance), system.units)} {side} the last boundary"
 
 
 def _nm_per_unit(units: str) -> float:
