@@ -93,7 +93,6 @@ def _setting_lines(system: System) -> list[str]:
         else:
             place = f"{_length(stop.offset, units)} after {system.boundaries[stop.after].name}"
         lines.append(f"  stop: {place}, {size}")
-    image = system.image
     lines.append("  image plane: " + image_plane_words(system))
     if system.wavelengths:
         words = ", ".join(
