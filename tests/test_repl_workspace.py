@@ -211,3 +211,18 @@ def test_reports_of_other_features_are_answered_and_not_kept(relay: Workspace) -
     answer = relay.run("report seidel sums")
     assert "Seidel" in answer and "total" in answer
     assert relay.statements == before
+
+
+def test_messages_name_the_file_and_the_line_it_will_have_when_saved(tmp_path: Path) -> None:
+    path = tmp_path / "relay.lay"
+    path.write_text("# a header comment kept on save\n" + RELAY, encoding="utf-8")
+    workspace = Workspace.open(path)
+    workspace.run("expect back focal distance > 1000")
+    failing = [r for r in workspace.snapshot.checked if not r.passed]
+    workspace.save()
+    lines = path.read_text(encoding="utf-8").splitlines()
+    (result,) = failing
+    assert result.expectation.span.file == str(path)
+    assert lines[result.expectation.span.line - 1].startswith("expect back focal distance")
+    out = workspace.run("change front radius to 0")
+    assert f"{path}:" in out and "error:" in out

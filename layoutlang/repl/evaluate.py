@@ -48,12 +48,18 @@ def _incomplete_reason(statements: tuple[t.Statement, ...]) -> str | None:
     return None
 
 
-def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None) -> Snapshot:
+def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
+             file: str = SESSION_FILE, header: str = "") -> Snapshot:
     """Interpret the statements and evaluate the layout.
+
+    The statements are read back as `save` writes them (header comments, then one statement
+    per line), so a line number in a message is the line of the saved file.
 
     Args:
         statements: the layout statements (no session commands).
         base: the folder `use "file"` is resolved against.
+        file: the name messages mention (the session's file, once it has one).
+        header: the comment lines kept above the statements.
 
     Returns:
         The snapshot (with results, or the reason the layout is not complete yet).
@@ -61,7 +67,8 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None) -> S
     Raises:
         LayoutError: a statement is wrong (the caller keeps its earlier state).
     """
-    script = parse(unparse(statements), SESSION_FILE)
+    # `save` aligns this text with the formatter, which moves columns but never lines
+    script = parse(header + unparse(statements), file)
     reason = _incomplete_reason(script.statements)
     if reason is None:
         program = interpreter.interpret(script, base=base)

@@ -18,7 +18,7 @@ from ..syntax.parser import parse
 from ..syntax.unparse import unparse
 from .changes import describe_changes
 from .edits import Statements, apply_edit, scope_names
-from .evaluate import Snapshot, evaluate
+from .evaluate import SESSION_FILE, Snapshot, evaluate
 
 __all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP", "write_atomically", "split_header"]
 
@@ -68,7 +68,7 @@ class Workspace:
         self.header = header
         self.dropped_comments = dropped_comments
         self.base = base or (path.parent if path else None)
-        self.snapshot: Snapshot = evaluate(tuple(statements), self.base)
+        self.snapshot: Snapshot = self._evaluate(tuple(statements))
         self.undo_stack: list[Snapshot] = []
         self.redo_stack: list[Snapshot] = []
         self.saved: Statements = tuple(statements) if path and path.exists() else ()
@@ -141,8 +141,13 @@ class Workspace:
             return self.answer(statement)
         return self._commit(self.statements + (statement,), "")
 
+    def _evaluate(self, statements: Statements) -> Snapshot:
+        """Evaluate as the saved file would read: its name and its line numbers."""
+        file = str(self.path) if self.path else SESSION_FILE
+        return evaluate(statements, self.base, file, self.header)
+
     def _commit(self, statements: Statements, said: str) -> str:
-        after = evaluate(statements, self.base)  # raises: nothing below runs, nothing changes
+        after = self._evaluate(statements)  # raises: nothing below runs, nothing changes
         before = self.snapshot
         self.undo_stack.append(before)
         self.redo_stack.clear()
@@ -163,7 +168,7 @@ class Workspace:
 
         if not self.snapshot.complete:
             raise LayoutValueError(f"the layout is not complete yet: {self.snapshot.incomplete}")
-        asked = evaluate(self.statements + (statement,), self.base)
+        asked = self._evaluate(self.statements + (statement,))
         kind = _SYMBOLIC_REQUESTS.get(type(statement).__name__)
         if kind is not None and asked.program.symbolic is not None:
             return _symbolic_answer(asked.program, kind)
