@@ -67,6 +67,12 @@ def test_completion_offers_names_in_scope_where_a_name_may_stand() -> None:
     assert "front" in completions("change gap after ")
 
 
+def test_completion_continues_a_quantity_of_several_words() -> None:
+    assert completions("expect back f") == ["back focal distance"]
+    assert completions("report focal length, back f") == ["back focal distance"]
+    assert "front principal point" in completions("expect front p")
+
+
 def test_completion_after_a_wrong_start_offers_nothing() -> None:
     assert candidates("surface ) ") == set()
 

@@ -62,6 +62,10 @@ def candidates(text: str, names: Iterable[str] = ()) -> set[str]:
     return found
 
 
+#: `expect` or `report` (or a report's comma), then the quantity's words typed so far.
+_QUANTITY_SO_FAR = re.compile(r"^\s*(?:expect|report(?:.*,)?)\s+(?P<words>[a-z][a-z\- ]*)$")
+
+
 class LayoutCompleter(Completer):
     """Offers what the grammar allows at the cursor."""
 
@@ -76,6 +80,15 @@ class LayoutCompleter(Completer):
         match = _PARTIAL.search(before)
         partial = match.group() if match else ""
         head = join_lines(self.pending(), before[: len(before) - len(partial)])
+        # a quantity may be several words ("back focal distance"): complete the words typed
+        # so far after `expect` / `report` (or after a comma in a report) as one prefix
+        typed = _QUANTITY_SO_FAR.match(before)
+        if typed and " " in typed.group("words"):
+            words = typed.group("words")
+            for name in sorted(set(QUANTITIES) | set(ALIASES)):
+                if name.startswith(words) and name != words:
+                    yield Completion(name, start_position=-len(words), display_meta="quantity")
+            return
         # a quantity may be several words ("focal length"): it is offered whole
         for word in sorted(candidates(head, self.names())):
             if word.startswith(partial) and word != partial:
