@@ -128,3 +128,14 @@ def test_any_wavelengths_at_once_equal_one_at_a_time(waves: list[float]) -> None
     together = SILICA.index(np.array(waves))
     assert together.tolist() == [SILICA.index(w) for w in waves]
     assert np.all(np.isfinite(together))
+
+
+def test_colour_is_measured_between_f_and_c_when_they_are_listed() -> None:
+    # F and C around d, or F' and C' around e, are the trade's colour ends (common practice;
+    # ISO 7944 names the lines); other lists fall back to their outermost wavelengths.
+    from layoutlang.materials.lines import SPECTRAL_LINES as L, colour_pair
+
+    assert colour_pair([L["d"], L["F"], L["C"], L["g"]]) == ("d", L["F"], L["C"])
+    assert colour_pair([L["e"], L["F'"], L["C'"], L["F"]]) == ("e", L["F'"], L["C'"])
+    assert colour_pair([500.0, 450.0, 700.0]) == (None, 450.0, 700.0)
+    assert colour_pair([550.0]) is None

@@ -16,8 +16,8 @@ Petzval surface has radius -1/(n_k P) in image space (a positive thin lens in ai
 
 Mirrors use the usual trick (index changes sign after reflection). An ideal `lens` images
 every point perfectly (see `realrays`), so it contributes nothing. δn is the index at the
-shortest listed wavelength minus that at the longest; with constant indices it is zero and so
-are the chromatic sums.
+blue end minus that at the red end (F and C when listed, else the shortest and longest listed
+wavelengths); with constant indices it is zero and so are the chromatic sums.
 """
 
 from __future__ import annotations
@@ -156,13 +156,24 @@ def seidel(system: System, results: FirstOrder | None = None,
     return seidel_from_rays(system, y, nu, y_bar, nu_bar, indices, dispersions)
 
 
+def colour_ends(system: System) -> tuple[float, float] | None:
+    """The blue and red wavelengths (layout units) of the chromatic sums: F and C (or F' and
+    C') when listed, else the shortest and longest listed; None with fewer than two."""
+    from ..materials.lines import colour_pair
+    from ..measure import LENGTH_UNITS
+
+    scale = LENGTH_UNITS["nm"] / LENGTH_UNITS[system.units]
+    pair = colour_pair(float(w.value) / scale for w in system.wavelengths)
+    return None if pair is None else (pair[1] * scale, pair[2] * scale)
+
+
 def _dispersions(system: System) -> list[float]:
-    """δn per space between the shortest and longest listed wavelength (zeros with fewer than
+    """δn per space between the blue and red ends of `colour_ends` (zeros with fewer than
     two wavelengths; media without dispersion give zero by themselves)."""
-    if len(system.wavelengths) < 2:
+    ends = colour_ends(system)
+    if ends is None:
         return [0.0] * (len(system.boundaries) + 1)
     from .aberrations import indices_at
 
-    values = sorted(float(w.value) for w in system.wavelengths)
-    short, long = indices_at(system, values[0]), indices_at(system, values[-1])
+    short, long = indices_at(system, ends[0]), indices_at(system, ends[1])
     return [float(a) - float(b) for a, b in zip(short, long)]

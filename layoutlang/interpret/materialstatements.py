@@ -459,24 +459,21 @@ class MaterialStatements:
         names = [self.medium_named(node.first), self.medium_named(node.second)]
         if names[0] == names[1]:
             raise LayoutValueError("an achromat needs two different media", self.span(node.second))
-        waves = sorted(w.value for w in system.wavelengths)
+        from ..materials.lines import colour_pair
+
         primary = system.primary_wavelength
         scale = LENGTH_UNITS["nm"] / LENGTH_UNITS[self.units]
-
-        def listed(letter: str) -> bool:
-            return any(abs(w - SPECTRAL_LINES[letter] * scale) <= 1e-9 * w for w in waves)
-
         # the Abbe numbers of the condition are taken over F and C (or F' and C') whenever the
         # layout lists them, as the trade does; otherwise over its shortest and longest
-        pair = next(((blue, red, middle) for blue, red, middle in
-                     (("F", "C", "d"), ("F'", "C'", "e")) if listed(blue) and listed(red)), None)
-        if pair is not None:
-            blue, red = SPECTRAL_LINES[pair[0]] * scale, SPECTRAL_LINES[pair[1]] * scale
-            middle = (primary.value if primary is not None and blue < primary.value < red
-                      else SPECTRAL_LINES[pair[2]] * scale)
-            chosen = (blue, middle, red)
-        elif len(waves) >= 3 and primary is not None and waves[0] < primary.value < waves[-1]:
-            chosen = (waves[0], primary.value, waves[-1])
+        pair = colour_pair(w.value / scale for w in system.wavelengths)
+        if pair is not None and (pair[0] is not None or len(system.wavelengths) >= 3):
+            middle, blue, red = pair
+            blue, red = blue * scale, red * scale
+            if primary is not None and blue < primary.value < red:
+                centre = primary.value
+            else:
+                centre = SPECTRAL_LINES[middle or "d"] * scale
+            chosen = (blue, centre, red)
         else:
             chosen = tuple(SPECTRAL_LINES[k] * scale for k in ("F", "d", "C"))
         indices = []

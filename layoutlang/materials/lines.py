@@ -7,7 +7,7 @@ letter is written with an apostrophe: F' and C' (the cadmium lines used with the
 
 from __future__ import annotations
 
-__all__ = ["SPECTRAL_LINES", "LINE_SOURCES", "line_nm", "is_line"]
+__all__ = ["SPECTRAL_LINES", "LINE_SOURCES", "line_nm", "is_line", "colour_pair"]
 
 #: letter → wavelength in nm (standard air).
 SPECTRAL_LINES: dict[str, float] = {
@@ -42,3 +42,23 @@ def is_line(letter: str) -> bool:
 def line_nm(letter: str) -> float:
     """The wavelength of a spectral line in nm; KeyError for an unknown letter."""
     return SPECTRAL_LINES[letter]
+
+
+def colour_pair(wavelengths_nm) -> tuple[str | None, float, float] | None:
+    """The blue and red ends colour is measured between, from a layout's wavelengths (nm).
+
+    The trade's pairs come first: F and C (around d), then F' and C' (around e), whenever both
+    are listed; otherwise the shortest and longest listed. Returns (the middle line's letter or
+    None, blue, red), or None with fewer than two wavelengths.
+    """
+    values = sorted(float(w) for w in wavelengths_nm)
+    if len(values) < 2:
+        return None
+
+    def listed(letter: str) -> bool:
+        return any(abs(w - SPECTRAL_LINES[letter]) <= 1e-6 * w for w in values)
+
+    for blue, red, middle in (("F", "C", "d"), ("F'", "C'", "e")):
+        if listed(blue) and listed(red):
+            return middle, SPECTRAL_LINES[blue], SPECTRAL_LINES[red]
+    return None, values[0], values[-1]

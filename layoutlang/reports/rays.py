@@ -140,10 +140,12 @@ def seidel_lines(program: Program, results: FirstOrder) -> list[str]:
     if len(system.wavelengths) < 2:
         lines.append("  chromatic sums need two or more wavelengths; they are zero here")
     else:
-        waves = sorted(float(w.value) for w in system.wavelengths)
-        lines.append(f"  C I and C II take δn between {_nm(system, waves[0])} and "
-                     f"{_nm(system, waves[-1])} (the shortest and longest listed); zero for "
-                     "media with a constant index")
+        from ..engines.seidel import colour_ends
+
+        blue, red = colour_ends(system)
+        lines.append(f"  C I and C II take δn between {_nm(system, blue)} and "
+                     f"{_nm(system, red)} (F and C when listed, else the shortest and longest); "
+                     "zero for media with a constant index")
     if _has_ideal(system):
         lines.append("  an ideal 'lens' images perfectly and contributes nothing")
     return lines
