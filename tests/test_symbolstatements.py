@@ -125,3 +125,10 @@ def test_a_symbol_where_a_comparison_is_needed_is_a_clear_error() -> None:
               "surface front radius 20 into air\ngap 10\nsurface back radius -20 into air\n"
               "stop s after front, diameter 5\n")
     assert "a symbol stands where a number must be compared" in str(caught.value)
+
+
+def test_a_negative_gap_at_nominal_names_the_surface_it_follows() -> None:
+    with pytest.raises(LayoutValueError) as caught:
+        loads("symbols d real\nnominal d = -2\nstart in air\nsurface front radius 10 into air\n"
+              "gap d\nsurface back flat into air\n")
+    assert "the gap after 'front' is negative" in caught.value.message

@@ -45,7 +45,9 @@ def numeric_system(system: System, nominal: dict[Any, Any], span: Span) -> Syste
     numeric = _numeric(system, nominal, span)
     for i, gap in enumerate(numeric.gaps):
         if gap < 0:
-            raise LayoutValueError(f"gap {i + 1} is negative at the nominal values", span)
+            raise LayoutValueError(
+                f"the gap after {numeric.boundaries[i].name!r} is negative at the nominal "
+                "values", span, hint="the nominal values are those of the 'nominal' line")
     for medium in numeric.media:
         if medium.index <= 0:
             raise LayoutValueError(f"the index of {medium.name!r} is not positive at the "
