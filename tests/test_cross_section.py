@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 
 from layoutlang import loads
+from layoutlang.engines.firstorder import first_order
 from layoutlang.reports.cross_section import APERTURE_MARGIN, cross_section, sag
 
 
@@ -206,3 +207,23 @@ def test_random_layouts_draw_finite_or_say_why() -> None:
             assert all(math.isfinite(v) for v in values), text
 
     check()
+
+
+def test_exact_rays_also_show_where_a_virtual_image_seems_to_be() -> None:
+    # A negative lens forms a virtual image upstream (thin-lens equation, Hecht 2017, Optics,
+    # 5th ed., eq. 5.17, from memory); the exact rays' backward extensions end at its plane.
+    program = loads("medium glass index 1.5\nobject 100 before, height 5\nstart in air\n"
+                    "surface a radius -40 into glass\ngap 3\nsurface b radius 40 into air\n"
+                    "stop at a, diameter 10\nimage at focus\n")
+    section = cross_section(program.system, exact=True)
+    extended = [r for r in section.rays if r.virtual_z]
+    assert extended and all(r.label == "exact" for r in extended)
+    image_z = first_order(program.system)["image position"]
+    assert all(r.virtual_z[-1] == pytest.approx(image_z) for r in extended)
+    # the marginal extensions cross the axis near the paraxial image, off it by the lens's
+    # spherical aberration (a few per cent at f/4)
+    marginal = [r for r in extended if r.role == "marginal"]
+    assert len(marginal) == 2
+    crossing = _axis_crossing(marginal[0].virtual_z, marginal[0].virtual_y)
+    assert crossing != pytest.approx(image_z, abs=1e-6)
+    assert abs(crossing - image_z) < 0.05 * abs(image_z)

@@ -407,6 +407,9 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
     geo = realrays.geometry(system)
     indices = [float(n) for n in system.indices()]
     boundary_steps = [k for k, step in enumerate(geo.steps) if step.boundary >= 0]
+    image, where = results["image distance"], results["image position"]
+    virtual_image = (float(where) if not isinstance(image, Unavailable) and image < 0
+                     and not isinstance(where, Unavailable) else None)
     paths, notes = [], []
     for role, field_, pupil_y in launches:
         if obj.at_infinity:  # parallel rays, through the pupil point at the pupil plane
@@ -435,6 +438,8 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
                 break
             zs.append(float(rays.z[0]))
             ys.append(float(rays.y[0]))
+        virtual_z: tuple[float, ...] = ()
+        virtual_y: tuple[float, ...] = ()
         if lost:
             notes.append(lost)
         else:
@@ -442,5 +447,9 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
             if t > 0:
                 zs.append(z_end)
                 ys.append(float(rays.y[0] + t * rays.ky[0]))
-        paths.append(RayPath(role, "exact", tuple(zs), tuple(ys)))
+            if virtual_image is not None:  # where the light seems to come from
+                back = (virtual_image - rays.z[0]) / rays.kz[0]
+                virtual_z = (float(rays.z[0]), virtual_image)
+                virtual_y = (float(rays.y[0]), float(rays.y[0] + back * rays.ky[0]))
+        paths.append(RayPath(role, "exact", tuple(zs), tuple(ys), virtual_z, virtual_y))
     return paths, notes
