@@ -91,7 +91,7 @@ image at focus
         pytest.skip("no dispersion models in this tree")
     fig = figure(system)
     legend = [t.get_text() for t in fig.legends[0].get_texts()]
-    assert legend[:3] == ["587.6 nm", "486.1 nm", "656.3 nm"]
+    assert legend[:3] == ["486.1 nm", "587.6 nm (primary)", "656.3 nm"]  # short to long
     ax = fig.axes[0]
     colours = {h.get_color() for h in fig.legends[0].legend_handles[:3]}
     rays = [line for line in ax.lines if line.get_color() in colours]

@@ -56,7 +56,7 @@ def _wavelength_colour(nm: float) -> str:
 
 def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]]:
     """(label, colour, cross-section) per wavelength where the layout's indices depend on the
-    wavelength, primary first; one set in our ray colour otherwise."""
+    wavelength, the primary last (drawn on top); one set in our ray colour otherwise."""
     section = cross_section(system, exact=exact)
     waves = list(system.wavelengths)
     at = getattr(system, "at_wavelength", None)
@@ -73,7 +73,9 @@ def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]
 
     sets = []
     primary = system.primary_wavelength
-    waves = [primary] + [w for w in waves if w is not primary]
+    # drawn in this order, the primary last so that its rays lie on top
+    waves = sorted((w for w in waves if w is not primary), key=lambda w: float(w.value))
+    waves.append(primary)
     # every colour ends on the one image plane (the primary's), where the sensor is
     plane = first_order(at(primary.value))["image plane distance"]
     for wave in waves:
@@ -81,7 +83,8 @@ def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]
         coloured = at(wave.value)
         if not isinstance(plane, Unavailable):
             coloured = replace(coloured, image=ImageSpec(float(plane)))
-        sets.append((f"{nm:g} nm", _wavelength_colour(nm), cross_section(coloured, exact=exact)))
+        label = f"{nm:g} nm" + (" (primary)" if wave is primary else "")
+        sets.append((label, _wavelength_colour(nm), cross_section(coloured, exact=exact)))
     return sets
 
 
@@ -104,9 +107,9 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
     from matplotlib.lines import Line2D
 
     sets = _ray_sets(system, exact)
-    section = sets[0][2]
+    section = sets[-1][2]  # the primary wavelength's
     z_min, z_max, y_max = section.extent()
-    for _, _, other in sets[1:]:
+    for _, _, other in sets[:-1]:
         a, b, c = other.extent()
         z_min, z_max, y_max = min(z_min, a), max(z_max, b), max(y_max, c)
     width = max(z_max - z_min, 1e-9)
@@ -187,6 +190,9 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
                         alpha=0.6, zorder=3)
         if label:
             handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
+    # the legend lists the wavelengths from short to long, wherever the primary is drawn
+    handles.sort(key=lambda h: float(h.get_label().split()[0]) if h.get_label()[:1].isdigit()
+                 else 0.0)
     kind = "exact" if any(r.label == "exact" for r in section.rays) else "paraxial"
     handles.append(Line2D([], [], color=ink, lw=0.9, label=f"marginal ray ({kind})"))
     handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)), label=f"chief ray ({kind})"))
