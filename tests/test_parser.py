@@ -199,8 +199,8 @@ def test_every_labelled_mistake_is_recognised(label: str, examples: list[str]) -
 
 
 @pytest.mark.parametrize("text, line, column, label", [
-    # 'into' reads as the name of a constant here, so the parser stops at the next word
-    ("surface front radius into glass", 1, 27, "a radius or curvature needs a value"),
+    # 'into' is never a name (grammar's NAME), so the caret stands under it
+    ("surface front radius into glass", 1, 22, "a radius or curvature needs a value"),
     ("surface front curvature\n", 1, 24, "a radius or curvature needs a value"),
     ("gap\n", 1, 4, "a gap needs a length"),
     ("object 250\n", 1, 11, "say where the object is"),
