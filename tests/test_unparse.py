@@ -8,7 +8,7 @@ import pytest
 
 from layoutlang.syntax import tree as t
 from layoutlang.syntax.parser import parse
-from layoutlang.syntax.unparse import UnparseError, unparse, unparse_expr, unparse_statement
+from layoutlang.syntax.unparse import UnparseError, unparse, expression_text, unparse_statement
 
 ROOT = Path(__file__).resolve().parent.parent
 FIXTURES = Path(__file__).parent / "fixtures"
@@ -78,7 +78,7 @@ def test_every_statement_class_has_a_rule_and_a_fixture_line(cls: type) -> None:
 ])
 def test_expressions_keep_only_the_parentheses_they_need(text: str, expected: str) -> None:
     expr = parse(f"let x = {text}").statements[0].value
-    assert unparse_expr(expr) == expected
+    assert expression_text(expr) == expected
     assert parse(f"let x = {expected}").statements[0].value == expr
 
 
@@ -114,4 +114,4 @@ _expressions = st.recursive(
 @settings(max_examples=300, deadline=None)
 @given(_expressions)
 def test_any_expression_tree_round_trips(expr: t.Expr) -> None:
-    assert parse(f"let x = {unparse_expr(expr)}").statements[0].value == expr
+    assert parse(f"let x = {expression_text(expr)}").statements[0].value == expr

@@ -292,9 +292,9 @@ def _map_tree(node: Any, fn: Callable[[Any], Any]) -> Any:
 
 
 def _expr(node: t.Expr | None) -> str:
-    from ..syntax.unparse import unparse_expr
+    from ..syntax.unparse import expression_text
 
-    return "flat" if node is None else unparse_expr(node)
+    return "flat" if node is None else expression_text(node)
 
 
 _EDITS = {"Change": _change, "Insert": _insert, "Remove": _remove, "Rename": _rename}

@@ -11,7 +11,7 @@ from typing import Callable, Iterable
 
 from . import tree as t
 
-__all__ = ["unparse", "unparse_statement", "unparse_expr", "UnparseError"]
+__all__ = ["unparse", "unparse_statement", "expression_text", "UnparseError"]
 
 
 class UnparseError(TypeError):
@@ -48,11 +48,11 @@ def _level(node: t.Expr) -> int:
 
 
 def _wrap(node: t.Expr, needed: int) -> str:
-    text = unparse_expr(node)
+    text = expression_text(node)
     return f"({text})" if _level(node) < needed else text
 
 
-def unparse_expr(node: t.Expr) -> str:
+def expression_text(node: t.Expr) -> str:
     """An expression as text; `a - (b - c)` keeps its parentheses, `a - b - c` has none."""
     if isinstance(node, t.Number):
         if node.unit is None:
@@ -61,7 +61,7 @@ def unparse_expr(node: t.Expr) -> str:
     if isinstance(node, t.Name):
         return node.id
     if isinstance(node, t.Call):
-        return f"{node.func}(" + ", ".join(unparse_expr(a) for a in node.args) + ")"
+        return f"{node.func}(" + ", ".join(expression_text(a) for a in node.args) + ")"
     if isinstance(node, t.Negate):
         return "-" + _wrap(node.operand, _SIGNED)
     if isinstance(node, t.Binary):
@@ -80,7 +80,7 @@ def unparse_expr(node: t.Expr) -> str:
 
 
 def _shape(shape: t.Shape) -> str:
-    return "flat" if shape.kind == "flat" else f"{shape.kind} {unparse_expr(shape.value)}"
+    return "flat" if shape.kind == "flat" else f"{shape.kind} {expression_text(shape.value)}"
 
 
 def _BoundaryStatement(node: t.BoundaryStatement) -> str:
@@ -88,14 +88,14 @@ def _BoundaryStatement(node: t.BoundaryStatement) -> str:
     if node.name is not None:
         parts.append(node.name.text)
     if node.kind == "lens":
-        parts.append(f"{node.strength_kind} {unparse_expr(node.strength)}")
+        parts.append(f"{node.strength_kind} {expression_text(node.strength)}")
     else:
         parts.append(_shape(node.shape))
     if node.into is not None:
         parts.append(f"into {node.into.text}")
     text = " ".join(parts)
     if node.clear_diameter is not None:
-        text += f", clear diameter {unparse_expr(node.clear_diameter)}"
+        text += f", clear diameter {expression_text(node.clear_diameter)}"
     return text
 
 
@@ -103,29 +103,29 @@ def _Stop(node: t.Stop) -> str:
     if node.relation == "at":
         place = f"stop at {node.anchor.text}"
     else:
-        place = f"stop {unparse_expr(node.offset)} {node.relation} {node.anchor.text}"
-    return f"{place}, {node.size_kind} {unparse_expr(node.size)}"
+        place = f"stop {expression_text(node.offset)} {node.relation} {node.anchor.text}"
+    return f"{place}, {node.size_kind} {expression_text(node.size)}"
 
 
 def _ObjectBefore(node: t.ObjectBefore) -> str:
-    text = f"object {unparse_expr(node.distance)} before"
-    return text if node.height is None else text + f", height {unparse_expr(node.height)}"
+    text = f"object {expression_text(node.distance)} before"
+    return text if node.height is None else text + f", height {expression_text(node.height)}"
 
 
 def _ObjectAtInfinity(node: t.ObjectAtInfinity) -> str:
     text = "object at infinity"
     if node.field_angle is not None:
-        text += f", field angle {unparse_expr(node.field_angle)}"
+        text += f", field angle {expression_text(node.field_angle)}"
     return text
 
 
 def _Wavelengths(node: t.Wavelengths) -> str:
-    items = (unparse_expr(w.value) + (" primary" if w.primary else "") for w in node.items)
+    items = (expression_text(w.value) + (" primary" if w.primary else "") for w in node.items)
     return "wavelengths " + ", ".join(items)
 
 
 def _Expect(node: t.Expect) -> str:
-    return (f"expect {node.quantity.text} {node.op} {unparse_expr(node.value)}"
+    return (f"expect {node.quantity.text} {node.op} {expression_text(node.value)}"
             + _tolerance(node.tolerance))
 
 
@@ -134,7 +134,7 @@ def _Report(node: t.Report) -> str:
 
 
 def _Change(node: t.Change) -> str:
-    value = "" if node.value is None else unparse_expr(node.value)
+    value = "" if node.value is None else expression_text(node.value)
     if node.target == "gap":
         return f"change gap {node.prop} {node.name.text} to {value}"
     if node.target in ("object", "stop"):
@@ -158,19 +158,19 @@ def _tolerance(node: t.Tolerance | None) -> str:
     if node is None:
         return ""
     word = "±" if node.kind == "±" else "within"
-    return f" {word} {unparse_expr(node.value)}"
+    return f" {word} {expression_text(node.value)}"
 
 
 def _exprs(values) -> str:
-    return ", ".join(unparse_expr(v) for v in values)
+    return ", ".join(expression_text(v) for v in values)
 
 
 # exact rays (grammar/rays.lark)
 def _ExpectRays(node: t.ExpectRays) -> str:
     text = f"expect {node.quantity.text}"
     if node.field is not None:
-        text += f" at field {unparse_expr(node.field)}"
-    text += f" {node.op} {unparse_expr(node.value)}"
+        text += f" at field {expression_text(node.field)}"
+    text += f" {node.op} {expression_text(node.value)}"
     if node.scale:
         return f"{text} {node.scale}"
     return text + _tolerance(node.tolerance)
@@ -178,20 +178,20 @@ def _ExpectRays(node: t.ExpectRays) -> str:
 
 # materials (grammar/materials.lark)
 def _pairs(pairs) -> str:
-    return ", ".join(f"({unparse_expr(a)}, {unparse_expr(b)})" for a, b in pairs)
+    return ", ".join(f"({expression_text(a)}, {expression_text(b)})" for a, b in pairs)
 
 
 def _MediumModel(node: t.MediumModel) -> str:
     head = f"medium {node.name.text}"
     if node.kind == "model glass":
         index, abbe = node.values
-        text = f"{head} index {unparse_expr(index)}, abbe number {unparse_expr(abbe)}"
+        text = f"{head} index {expression_text(index)}, abbe number {expression_text(abbe)}"
     elif node.kind == "glass code":
         text = f"{head} glass code {node.code}"
     elif node.kind == "sellmeier":
         text = f"{head} sellmeier"
         if node.constant is not None:
-            text += f" constant {unparse_expr(node.constant)}"
+            text += f" constant {expression_text(node.constant)}"
         if node.squared:
             text += " squared"
         text += f" wavelengths {_pairs(node.pairs)}"
@@ -201,14 +201,14 @@ def _MediumModel(node: t.MediumModel) -> str:
         text = f"{head} table {_pairs(node.pairs)}"
     if node.valid is not None:
         low, high = node.valid
-        text += f", valid from {unparse_expr(low)} to {unparse_expr(high)}"
+        text += f", valid from {expression_text(low)} to {expression_text(high)}"
     if node.relative_to is not None:
         text += f", relative to {node.relative_to}"
     return text
 
 
 def _wavelength_ref(ref: t.WavelengthRef) -> str:
-    return ref.name if ref.name is not None else unparse_expr(ref.number)
+    return ref.name if ref.name is not None else expression_text(ref.number)
 
 
 def _qualifier(q: t.Qualifier) -> str:
@@ -224,14 +224,14 @@ def _qualifier(q: t.Qualifier) -> str:
 
 def _QualifiedExpect(node: t.QualifiedExpect) -> str:
     qualifiers = " ".join(_qualifier(q) for q in node.qualifiers)
-    return (f"expect {node.quantity.text} {qualifiers} {node.op} {unparse_expr(node.value)}"
+    return (f"expect {node.quantity.text} {qualifiers} {node.op} {expression_text(node.value)}"
             + _tolerance(node.tolerance))
 
 
 def _Achromat(node: t.Achromat) -> str:
     text = f"achromat from {node.first.text} and {node.second.text}"
     if node.focal_length is not None:
-        text += f", focal length {unparse_expr(node.focal_length)}"
+        text += f", focal length {expression_text(node.focal_length)}"
     return text
 
 
@@ -246,7 +246,7 @@ def _Symbols(node: t.Symbols) -> str:
 
 
 def _Solve(node: t.Solve) -> str:
-    conditions = " and ".join(f"{c.quantity.text} = {unparse_expr(c.value)}"
+    conditions = " and ".join(f"{c.quantity.text} = {expression_text(c.value)}"
                               for c in node.conditions)
     return f"solve {_names(node.unknowns)} so that {conditions}"
 
@@ -254,16 +254,16 @@ def _Solve(node: t.Solve) -> str:
 _RULES: dict[str, Callable] = {
     "Title": lambda n: f'layout "{n.text}"',
     "Units": lambda n: f"units {n.unit.text}",
-    "Let": lambda n: f"let {n.name.text} = {unparse_expr(n.value)}",
-    "MediumIndex": lambda n: f"medium {n.name.text} index {unparse_expr(n.index)}",
+    "Let": lambda n: f"let {n.name.text} = {expression_text(n.value)}",
+    "MediumIndex": lambda n: f"medium {n.name.text} index {expression_text(n.index)}",
     "StartMedium": lambda n: f"start in {n.medium.text}",
     "ObjectAtInfinity": _ObjectAtInfinity,
     "ObjectBefore": _ObjectBefore,
     "BoundaryStatement": _BoundaryStatement,
-    "Gap": lambda n: f"gap {unparse_expr(n.length)}",
+    "Gap": lambda n: f"gap {expression_text(n.length)}",
     "Stop": _Stop,
     "Image": lambda n: "image at focus" if n.distance is None
-    else f"image {unparse_expr(n.distance)} after",
+    else f"image {expression_text(n.distance)} after",
     "Wavelengths": _Wavelengths,
     "Expect": _Expect,
     "Report": _Report,
@@ -271,7 +271,7 @@ _RULES: dict[str, Callable] = {
     "Hazard": lambda n: f"hazard {n.kind.text}",
     # exact rays
     "Sample": lambda n: f"sample {n.what} {_exprs(n.values)}",
-    "FocusTolerance": lambda n: f"focus tolerance {unparse_expr(n.value)}",
+    "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
     "ReportRays": lambda n: f"report {n.what}",
     "ExpectRays": _ExpectRays,
     # materials and wavelengths
@@ -283,14 +283,14 @@ _RULES: dict[str, Callable] = {
     + " ".join(_qualifier(q) for q in n.qualifiers),
     # symbolic work
     "Symbols": _Symbols,
-    "Nominal": lambda n: "nominal " + ", ".join(f"{v.name.text} = {unparse_expr(v.value)}"
+    "Nominal": lambda n: "nominal " + ", ".join(f"{v.name.text} = {expression_text(v.value)}"
                                                 for v in n.values),
     "Derive": lambda n: "derive " + ", ".join(q.text for q in n.quantities),
     "Solve": _Solve,
     "Sensitivity": lambda n: "sensitivity of " + ", ".join(q.text for q in n.quantities)
     + f" to {_names(n.symbols)}",
     "ExpectSensitivity": lambda n: f"expect sensitivity of {n.quantity.text} to "
-    f"{n.symbol.text} {n.op} {unparse_expr(n.value)}" + _tolerance(n.tolerance),
+    f"{n.symbol.text} {n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
     # commands of the interactive session
     "Change": _Change,
     "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",
@@ -309,21 +309,21 @@ _RULES: dict[str, Callable] = {
 
 
 def _ExpectRays(node: t.ExpectRays) -> str:
-    at = "" if node.field is None else f" at field {unparse_expr(node.field)}"
+    at = "" if node.field is None else f" at field {expression_text(node.field)}"
     if node.wavelength is not None:
         at += f" at wavelength {_wavelength_ref(node.wavelength)}"
-    text = f"expect {node.quantity.text}{at} {node.op} {unparse_expr(node.value)}"
+    text = f"expect {node.quantity.text}{at} {node.op} {expression_text(node.value)}"
     if node.scale:
         return f"{text} {node.scale}"
     if node.tolerance is not None:
         word = "±" if node.tolerance.kind == "±" else "within"
-        text += f" {word} {unparse_expr(node.tolerance.value)}"
+        text += f" {word} {expression_text(node.tolerance.value)}"
     return text
 
 
 _RULES.update({
-    "Sample": lambda n: f"sample {n.what} " + ", ".join(unparse_expr(v) for v in n.values),
-    "FocusTolerance": lambda n: f"focus tolerance {unparse_expr(n.value)}",
+    "Sample": lambda n: f"sample {n.what} " + ", ".join(expression_text(v) for v in n.values),
+    "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
     "ReportRays": lambda n: f"report {n.what}",
     "ExpectRays": _ExpectRays,
 })
