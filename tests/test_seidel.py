@@ -131,3 +131,22 @@ image at focus
                    for w in (486.1327e-6, 656.2725e-6))
     assert third == pytest.approx(short - long, rel=0.02)
     assert third < 0  # a positive singlet brings blue to a focus first
+
+
+def test_a_thin_lens_after_a_mirror_converges_in_the_seidel_trace_too() -> None:
+    # A concave mirror of radius 200 acts on the axial bundle as a thin lens of focal length
+    # 100 (mirror equation, common practice); a window after a thin lens sees the same ray
+    # whether the path is folded by the mirror or not, so its third-order sums agree.
+    from layoutlang import loads
+    from layoutlang.engines.seidel import seidel
+
+    tail = ("gap 50\nlens l focal length 50\ngap 10\nsurface w flat into glass\n"
+            "gap 5\nsurface v flat into air\nimage at focus\n")
+    head = "medium glass index 1.5\nobject at infinity, field angle 1 deg\nstart in air\n"
+    folded = seidel(loads(head + "mirror m radius -200\nstop at m, diameter 20\n" + tail).system)
+    straight = seidel(loads(head + "lens m focal length 100\nstop at m, diameter 20\n"
+                            + tail).system)
+    window = [s for s in folded.surfaces if s.name == "w"][0]
+    same = [s for s in straight.surfaces if s.name == "w"][0]
+    assert window.spherical == pytest.approx(same.spherical, rel=1e-9)
+    assert window.spherical != 0

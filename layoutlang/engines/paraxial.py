@@ -39,6 +39,13 @@ def signed_indices(system: System) -> list[Number]:
     return [sense * n for sense, n in zip(system.directions(), system.indices())]
 
 
+def thin_lens_power(signed_index: Number, sense: int, power: Number) -> Number:
+    """The reduced power of an ideal thin lens in a space of `signed_index` crossed in
+    `sense` (±1): a thin lens converges whichever way the light crosses it, so it takes the
+    physical index |N| = sense·N, not the signed one."""
+    return signed_index * power if sense > 0 else -signed_index * power
+
+
 def surface_powers(system: System) -> list[Number]:
     """The reduced power phi of each boundary."""
     indices = signed_indices(system)
@@ -47,9 +54,7 @@ def surface_powers(system: System) -> list[Number]:
     for i, boundary in enumerate(system.boundaries):
         before, after = indices[i], indices[i + 1]
         if boundary.kind == IDEAL:
-            # a thin lens converges whichever way the light crosses it: its reduced power uses
-            # the physical index (|N|), not the signed one
-            powers.append(before * boundary.power if senses[i] > 0 else -before * boundary.power)
+            powers.append(thin_lens_power(before, senses[i], boundary.power))
         elif boundary.kind == MIRROR:
             powers.append(boundary.curvature * (-before - before))
         else:

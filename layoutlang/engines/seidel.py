@@ -28,6 +28,7 @@ from typing import Any, Sequence
 
 from ..system import IDEAL, System
 from .firstorder import FirstOrder, Unavailable, first_order
+from .paraxial import thin_lens_power
 
 __all__ = ["SurfaceSums", "SeidelSums", "seidel", "seidel_from_rays"]
 
@@ -95,7 +96,7 @@ def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: 
         n, n2 = signed[i], signed[i + 1]
         c = float(boundary.curvature)
         if boundary.kind == IDEAL:
-            phi = n * float(boundary.power)
+            phi = thin_lens_power(n, senses[i], float(boundary.power))
             nu2, nu_bar2 = nu - y * phi, nu_bar - y_bar * phi
             rows.append(SurfaceSums(boundary.name, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0))
         else:
