@@ -7,7 +7,7 @@ from dataclasses import dataclass
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
 from .quantities import PERCENT, POWER, RAY_QUANTITIES
-from .measure import LENGTH_UNITS
+from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
 
 __all__ = ["CheckResult", "check_program", "display_unit", "to_display"]
@@ -65,7 +65,7 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
             if expectation.field is not None:
                 label = f"{label} at field {expectation.field:g}"
             if expectation.wavelength is not None:
-                nm = expectation.wavelength * LENGTH_UNITS[units] * 1e6
+                nm = to_nanometres(expectation.wavelength, units)
                 label = f"{label} at {nm:.6g} nm"
             if expectation.scale:
                 label = f"size of the {label} in depths of focus"

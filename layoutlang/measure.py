@@ -11,7 +11,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["Measure", "LENGTH_UNITS", "unit_scale", "DIMENSION_WORDS"]
+__all__ = ["Measure", "LENGTH_UNITS", "unit_scale", "DIMENSION_WORDS", "to_nanometres",
+           "from_nanometres"]
 
 #: Length units and their size in millimetres.
 LENGTH_UNITS: dict[str, float] = {
@@ -32,6 +33,16 @@ DIMENSION_WORDS = {
     (0, 1): "an angle",
     (2, 0): "an area",
 }
+
+
+def to_nanometres(length: Any, units: str) -> Any:
+    """A length in the layout's unit (a wavelength, say) in nanometres."""
+    return length * LENGTH_UNITS[units] * 1e6
+
+
+def from_nanometres(nanometres: Any, units: str) -> Any:
+    """Nanometres in the layout's length unit."""
+    return nanometres * LENGTH_UNITS["nm"] / LENGTH_UNITS[units]
 
 
 def unit_scale(unit: str, script_unit: str) -> tuple[float, int, int, bool]:

@@ -21,7 +21,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from ..measure import LENGTH_UNITS
+from ..measure import from_nanometres
 from ..system import System
 from . import paraxial, realrays
 from .firstorder import FirstOrder, Unavailable, first_order
@@ -62,7 +62,7 @@ def wavelength_sets(system: System) -> list[tuple[float, tuple[Any, ...]]]:
     Media with a dispersion model give their index at each wavelength through
     `System.indices(wavelength)`; media with a constant index are the same at every one.
     """
-    nm = 1e-6 / LENGTH_UNITS[system.units]
+    nm = from_nanometres(1.0, system.units)
     primary = system.primary_wavelength
     if primary is None:
         return [(DEFAULT_WAVELENGTH_NM * nm, tuple(float(n) for n in system.indices()))]

@@ -206,13 +206,13 @@ def colour_table(system: System, results: FirstOrder | None = None) -> ColourTab
 
 
 def _labels(system: System) -> list[str]:
-    from ..materials.lines import SPECTRAL_LINES
+    from ..materials.lines import line_letter
+    from ..measure import to_nanometres
 
     found = []
     for w in system.wavelengths:
-        nm = float(system.to_micrometres(w.value)) * 1000.0
-        letter = next((k for k, v in SPECTRAL_LINES.items() if abs(v - nm) < 5e-5), None)
-        found.append(letter or f"{nm:g} nm")
+        nm = float(to_nanometres(w.value, system.units))
+        found.append(line_letter(nm) or f"{nm:g} nm")
     return found
 
 

@@ -161,11 +161,12 @@ def colour_ends(system: System) -> tuple[float, float] | None:
     """The blue and red wavelengths (layout units) of the chromatic sums: F and C (or F' and
     C') when listed, else the shortest and longest listed; None with fewer than two."""
     from ..materials.lines import colour_pair
-    from ..measure import LENGTH_UNITS
+    from ..measure import from_nanometres, to_nanometres
 
-    scale = LENGTH_UNITS["nm"] / LENGTH_UNITS[system.units]
-    pair = colour_pair(float(w.value) / scale for w in system.wavelengths)
-    return None if pair is None else (pair[1] * scale, pair[2] * scale)
+    pair = colour_pair(to_nanometres(float(w.value), system.units) for w in system.wavelengths)
+    if pair is None:
+        return None
+    return from_nanometres(pair[1], system.units), from_nanometres(pair[2], system.units)
 
 
 def _dispersions(system: System) -> list[float]:

@@ -12,7 +12,8 @@ from dataclasses import dataclass, replace
 from typing import Any
 
 from ..errors import LayoutNameError, LayoutUnitError, LayoutValueError
-from ..measure import LENGTH_UNITS, Measure
+from ..measure import Measure, from_nanometres, to_nanometres
+from ..materials.lines import SPECTRAL_LINES, line_letter
 from ..quantities import REPORT_ORDER, lookup
 from ..syntax import tree as t
 from ..system import System, Wavelength
@@ -149,8 +150,6 @@ class MaterialStatements:
 
     def _named_wavelength(self, name: str, node: t.Node) -> float | None:
         """A spectral line letter in layout units; None when `name` is not a line letter."""
-        from ..materials.lines import SPECTRAL_LINES
-
         if name not in SPECTRAL_LINES:
             if name.endswith("'"):
                 raise LayoutNameError(
@@ -161,7 +160,7 @@ class MaterialStatements:
             raise LayoutNameError(
                 f"{name!r} is both a spectral line and a name defined with 'let'",
                 self.span(node), hint="rename the constant, or write the wavelength in nm")
-        return SPECTRAL_LINES[name] * LENGTH_UNITS["nm"] / LENGTH_UNITS[self.units]
+        return from_nanometres(SPECTRAL_LINES[name], self.units)
 
     def _resolve_ref(self, ref: t.WavelengthRef) -> tuple[float, str]:
         """(value in layout units, label) of a wavelength named in a qualifier."""
@@ -187,7 +186,7 @@ class MaterialStatements:
 
     # --- models -------------------------------------------------------------------------------
     def _to_um(self, value: float) -> float:
-        return value * LENGTH_UNITS[self.units] * 1000.0
+        return to_nanometres(value, self.units) / 1000.0
 
     def _wavelength_um(self, node: t.Expr, what: str) -> float:
         measure = self.value(node)
@@ -278,7 +277,7 @@ class MaterialStatements:
         environment = node.environment if node is not None else STANDARD_AIR
         wavelengths = system.wavelengths
         if not wavelengths:
-            d_line = 587.5618 * LENGTH_UNITS["nm"] / LENGTH_UNITS[system.units]
+            d_line = from_nanometres(SPECTRAL_LINES["d"], system.units)
             wavelengths = (Wavelength(d_line, True),)
             state["default_wavelength"] = True
         system = replace(system, wavelengths=wavelengths, environment=environment)
@@ -318,7 +317,6 @@ class MaterialStatements:
     def colour_request(self, name: str, qualifiers, node: t.Node, system: System):
         """Resolve qualifiers and defaults into an `engines.chromatic.Request`."""
         from ..engines.chromatic import Request
-        from ..materials.lines import SPECTRAL_LINES
 
         found: dict[str, t.Qualifier] = {}
         for qualifier in qualifiers:
@@ -349,8 +347,7 @@ class MaterialStatements:
             return tuple(v for v, _ in resolved), tuple(label for _, label in resolved)
 
         def lines(*letters: str) -> tuple[tuple[float, ...], tuple[str, ...]]:
-            scale = LENGTH_UNITS["nm"] / LENGTH_UNITS[self.units]
-            return tuple(SPECTRAL_LINES[k] * scale for k in letters), letters
+            return tuple(from_nanometres(SPECTRAL_LINES[k], self.units) for k in letters), letters
 
         def allow(*kinds: str) -> None:
             for kind, qualifier in found.items():
@@ -401,11 +398,8 @@ class MaterialStatements:
         return Request(name, waves[0], waves[1], **medium_args)
 
     def _label(self, value: float) -> str:
-        from ..materials.lines import SPECTRAL_LINES
-
-        nm = value * LENGTH_UNITS[self.units] / LENGTH_UNITS["nm"]
-        letter = next((k for k, v in SPECTRAL_LINES.items() if abs(v - nm) < 5e-5), None)
-        return letter or f"{nm:g} nm"
+        nm = to_nanometres(value, self.units)
+        return line_letter(nm) or f"{nm:g} nm"
 
     def _extremes(self, system: System, node: t.Node, name: str):
         waves = sorted(w.value for w in system.wavelengths)
@@ -454,7 +448,6 @@ class MaterialStatements:
 
     def _achromat(self, node: t.Achromat, system: System) -> AchromatRequest:
         from ..materials.environment import relative_index
-        from ..materials.lines import SPECTRAL_LINES
 
         names = [self.medium_named(node.first), self.medium_named(node.second)]
         if names[0] == names[1]:
@@ -462,20 +455,19 @@ class MaterialStatements:
         from ..materials.lines import colour_pair
 
         primary = system.primary_wavelength
-        scale = LENGTH_UNITS["nm"] / LENGTH_UNITS[self.units]
         # the Abbe numbers of the condition are taken over F and C (or F' and C') whenever the
         # layout lists them, as the trade does; otherwise over its shortest and longest
-        pair = colour_pair(w.value / scale for w in system.wavelengths)
+        pair = colour_pair(to_nanometres(w.value, self.units) for w in system.wavelengths)
         if pair is not None and (pair[0] is not None or len(system.wavelengths) >= 3):
             middle, blue, red = pair
-            blue, red = blue * scale, red * scale
+            blue, red = from_nanometres(blue, self.units), from_nanometres(red, self.units)
             if primary is not None and blue < primary.value < red:
                 centre = primary.value
             else:
-                centre = SPECTRAL_LINES[middle or "d"] * scale
+                centre = from_nanometres(SPECTRAL_LINES[middle or "d"], self.units)
             chosen = (blue, centre, red)
         else:
-            chosen = tuple(SPECTRAL_LINES[k] * scale for k in ("F", "d", "C"))
+            chosen = tuple(from_nanometres(SPECTRAL_LINES[k], self.units) for k in ("F", "d", "C"))
         indices = []
         for name, ident in zip(names, (node.first, node.second)):
             model, _ = self._materials()["models"].get(name, (None, None))

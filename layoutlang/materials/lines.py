@@ -7,7 +7,8 @@ letter is written with an apostrophe: F' and C' (the cadmium lines used with the
 
 from __future__ import annotations
 
-__all__ = ["SPECTRAL_LINES", "LINE_SOURCES", "line_nm", "is_line", "colour_pair"]
+__all__ = ["SPECTRAL_LINES", "LINE_SOURCES", "line_nm", "is_line", "line_letter",
+           "colour_pair"]
 
 #: letter → wavelength in nm (standard air).
 SPECTRAL_LINES: dict[str, float] = {
@@ -42,6 +43,11 @@ def is_line(letter: str) -> bool:
 def line_nm(letter: str) -> float:
     """The wavelength of a spectral line in nm; KeyError for an unknown letter."""
     return SPECTRAL_LINES[letter]
+
+
+def line_letter(nanometres: float) -> str | None:
+    """The letter of the spectral line at this wavelength, if it is one."""
+    return next((k for k, v in SPECTRAL_LINES.items() if abs(v - nanometres) < 5e-5), None)
 
 
 def colour_pair(wavelengths_nm) -> tuple[str | None, float, float] | None:

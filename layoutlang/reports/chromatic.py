@@ -11,7 +11,7 @@ from typing import Any
 
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
-from ..measure import LENGTH_UNITS
+from ..measure import to_nanometres
 from ..testing import format_number
 
 __all__ = ["has_colour", "setting_lines", "colour_lines", "colour_notes", "colour_json"]
@@ -25,7 +25,7 @@ def has_colour(program: Program) -> bool:
 
 
 def _nm(system, value: float) -> str:
-    return f"{format_number(value * LENGTH_UNITS[system.units] / LENGTH_UNITS['nm'])} nm"
+    return f"{format_number(to_nanometres(value, system.units))} nm"
 
 
 def _value(value: Any, unit: str) -> str:
@@ -153,7 +153,7 @@ def colour_json(program: Program, results: FirstOrder) -> dict:
     table = colour_table(system, results)
     if table is not None:
         data["per_wavelength"] = [{
-            "wavelength_nm": float(f"{w * LENGTH_UNITS[system.units] / LENGTH_UNITS['nm']:.12g}"),
+            "wavelength_nm": float(f"{to_nanometres(w, system.units):.12g}"),
             "focal_length": number(table.focal_length if isinstance(table.focal_length,
                                                                     Unavailable)
                                    else table.focal_length[i]),

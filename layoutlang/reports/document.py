@@ -79,11 +79,10 @@ def setting_lines(system: System) -> list[str]:
         lines.append(f"stop {where}, {size}")
     lines.append("image plane " + image_plane_words(system))
     if system.wavelengths:
-        from ..measure import LENGTH_UNITS
+        from ..measure import to_nanometres
 
-        nm = LENGTH_UNITS[units] * 1e6
         lines.append("wavelengths " + ", ".join(
-            f"{format_number(w.value * nm)} nm" + (" (primary)" if w.primary else "")
+            f"{format_number(to_nanometres(w.value, units))} nm" + (" (primary)" if w.primary else "")
             for w in system.wavelengths))
     return lines
 

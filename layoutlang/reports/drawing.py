@@ -89,9 +89,9 @@ def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]
 
 
 def _nm(system: System, value: Any) -> float:
-    from ..measure import LENGTH_UNITS
+    from ..measure import to_nanometres
 
-    return round(float(value) * LENGTH_UNITS[system.units] * 1e6, 3)
+    return round(float(to_nanometres(float(value), system.units)), 3)
 
 
 def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) -> Any:

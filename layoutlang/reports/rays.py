@@ -44,9 +44,9 @@ def _field_words(system, fraction: float) -> str:
 
 
 def _nm(system, wavelength: float) -> str:
-    from ..measure import LENGTH_UNITS
+    from ..measure import to_nanometres
 
-    return f"{format_number(wavelength * LENGTH_UNITS[system.units] * 1e6, 5)} nm"
+    return f"{format_number(to_nanometres(wavelength, system.units), 5)} nm"
 
 
 def _has_ideal(system) -> bool:

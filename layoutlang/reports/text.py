@@ -9,6 +9,7 @@ from __future__ import annotations
 import math
 
 from ..checks import CheckResult, display_unit, to_display
+from ..measure import to_nanometres
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
@@ -96,7 +97,7 @@ def _setting_lines(system: System) -> list[str]:
     lines.append("  image plane: " + image_plane_words(system))
     if system.wavelengths:
         words = ", ".join(
-            f"{format_number(w.value * _nm_per_unit(units))} nm" + (" (primary)" if w.primary else "")
+            f"{format_number(to_nanometres(w.value, units))} nm" + (" (primary)" if w.primary else "")
             for w in system.wavelengths)
         lines.append(f"  wavelengths: {words}")
     return lines
@@ -109,12 +110,6 @@ def image_plane_words(system: System) -> str:
         return "at the paraxial focus"
     side = "after" if distance >= 0 else "before"
     return f"{_length(abs(distance), system.units)} {side} the last boundary"
-
-
-def _nm_per_unit(units: str) -> float:
-    from ..measure import LENGTH_UNITS
-
-    return LENGTH_UNITS[units] * 1e6
 
 
 def describe_value(name: str, value, units: str) -> str:
