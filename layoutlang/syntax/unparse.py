@@ -167,10 +167,10 @@ def _exprs(values) -> str:
 
 # exact rays (grammar/rays.lark)
 def _ExpectRays(node: t.ExpectRays) -> str:
-    text = f"expect {node.quantity.text}"
-    if node.field is not None:
-        text += f" at field {expression_text(node.field)}"
-    text += f" {node.op} {expression_text(node.value)}"
+    at = "" if node.field is None else f" at field {expression_text(node.field)}"
+    if node.wavelength is not None:
+        at += f" at wavelength {_wavelength_ref(node.wavelength)}"
+    text = f"expect {node.quantity.text}{at} {node.op} {expression_text(node.value)}"
     if node.scale:
         return f"{text} {node.scale}"
     return text + _tolerance(node.tolerance)
@@ -304,26 +304,3 @@ _RULES: dict[str, Callable] = {
     "Leave": lambda n: "leave",
 }
 
-
-# --- exact rays and aberrations (grammar/rays.lark) -----------------------------------------
-
-
-def _ExpectRays(node: t.ExpectRays) -> str:
-    at = "" if node.field is None else f" at field {expression_text(node.field)}"
-    if node.wavelength is not None:
-        at += f" at wavelength {_wavelength_ref(node.wavelength)}"
-    text = f"expect {node.quantity.text}{at} {node.op} {expression_text(node.value)}"
-    if node.scale:
-        return f"{text} {node.scale}"
-    if node.tolerance is not None:
-        word = "±" if node.tolerance.kind == "±" else "within"
-        text += f" {word} {expression_text(node.tolerance.value)}"
-    return text
-
-
-_RULES.update({
-    "Sample": lambda n: f"sample {n.what} " + ", ".join(expression_text(v) for v in n.values),
-    "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
-    "ReportRays": lambda n: f"report {n.what}",
-    "ExpectRays": _ExpectRays,
-})
