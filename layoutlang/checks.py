@@ -10,7 +10,7 @@ from .quantities import PERCENT, POWER, RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
 
-__all__ = ["CheckResult", "check_program", "display_unit", "to_display"]
+__all__ = ["CheckResult", "check_program", "evaluate_program", "display_unit", "to_display"]
 
 
 @dataclass(frozen=True)
@@ -38,13 +38,22 @@ def to_display(value, kind: str, units: str):
     return value
 
 
-def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
-    """Every expectation of the program with its outcome, in script order."""
-    if program.symbolic is not None:  # checked at its nominal values, which must all be given
+def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
+    """The first-order results of a program and the outcome of each expectation, as every
+    front end reports them (a symbolic script at its nominal values, which must all be given)."""
+    if program.symbolic is not None:
         from .symbolic.program import require_numeric
 
         require_numeric(program)
-    results = results or first_order(program.system)
+    results = first_order(program.system)
+    return results, check_program(program, results)
+
+
+def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
+    """Every expectation of the program with its outcome, in script order."""
+    if results is None:
+        results, checked = evaluate_program(program)
+        return checked
     units = program.system.units
     checked = []
     for expectation in program.expectations:

@@ -80,17 +80,11 @@ def _repl(args: argparse.Namespace) -> int:
 
 
 def _evaluate(path: str):
-    from .checks import check_program
-    from .engines.firstorder import first_order
+    from .checks import evaluate_program
     from .interpret.interpreter import load_file
 
     program = load_file(path)
-    if program.symbolic is not None:
-        from .symbolic.program import require_numeric
-
-        require_numeric(program)  # a symbolic script is checked at its nominal values
-    results = first_order(program.system)
-    return program, results, check_program(program, results)
+    return (program, *evaluate_program(program))
 
 
 def _run(path: str, as_json: bool) -> int:

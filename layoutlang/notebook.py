@@ -18,13 +18,12 @@ __all__ = ["FirstOrderResults", "program_html", "with_units"]
 
 def program_html(program) -> str:
     """The program's report (drawing, layout, first-order, expectations) as an HTML fragment."""
-    from .checks import check_program
-    from .engines.firstorder import first_order
+    from .checks import evaluate_program
     from .errors import LayoutError
     from .reports.document import gather, html_fragment
 
-    results = first_order(program.system)
-    sections = gather(program, results, check_program(program, results))
+    results, checked = evaluate_program(program)
+    sections = gather(program, results, checked)
     svg = None
     try:
         from .reports.drawing import drawing_bytes

@@ -10,8 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from ..checks import CheckResult, check_program
-from ..engines.firstorder import FirstOrder, first_order
+from ..checks import CheckResult, evaluate_program
+from ..engines.firstorder import FirstOrder
 from ..interpret import interpreter
 from ..interpret.interpreter import Program
 from ..syntax import tree as t
@@ -72,9 +72,8 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
     reason = _incomplete_reason(script.statements)
     if reason is None:
         program = interpreter.interpret(script, base=base)
-        results = first_order(program.system)
-        checked = tuple(check_program(program, results))
-        return Snapshot(tuple(statements), program, results, checked)
+        results, checked = evaluate_program(program)
+        return Snapshot(tuple(statements), program, results, tuple(checked))
     # Still being built: run every statement so a wrong one is caught now, but skip the
     # whole-layout checks that only make sense once it is complete.
     run = interpreter._Interpreter(script, base or Path.cwd())  # the statement-level half

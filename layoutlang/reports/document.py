@@ -288,18 +288,13 @@ def render_document(path: str, doc_format: str, output: str | None = None) -> Do
     Returns:
         The document's text and whether every expectation holds.
     """
-    from ..checks import check_program
-    from ..engines.firstorder import first_order
+    from ..checks import evaluate_program
     from ..interpret.interpreter import load_file
     from .drawing import drawing_bytes
 
     program = load_file(path)
-    if getattr(program, "symbolic", None) is not None:
-        from ..symbolic.program import require_numeric
-
-        require_numeric(program)  # the tables and the drawing need a number for every symbol
-    results = first_order(program.system)
-    sections = gather(program, results, check_program(program, results))
+    results, checked = evaluate_program(program)  # numbers for every symbol, or a clear error
+    sections = gather(program, results, checked)
     cautions = tuple(getattr(program, "hazards", ()) or ())
 
     def picture(kind: str) -> bytes | None:
