@@ -211,7 +211,8 @@ class _Evaluation:
             v["entrance pupil position"] = n0 * b1 / a1
 
         # the marginal ray: starting height and reduced angle at the first vertex
-        marginal = self._marginal_start(stop, object_steps, split.front, entrance_at_infinity)
+        marginal = self._marginal_start(stop, object_steps, split.front, (a1, b1, c1, d1),
+                                        entrance_at_infinity)
         if isinstance(marginal, Unavailable):
             for name in names:
                 if name not in v:
@@ -244,10 +245,10 @@ class _Evaluation:
             y_chief, nu_chief = chief
             v["lagrange invariant"] = nu0 * y_chief - nu_chief * y0
 
-    def _marginal_start(self, stop, object_steps, front_steps, entrance_at_infinity):
+    def _marginal_start(self, stop, object_steps, front_steps, front, entrance_at_infinity):
         """(y, nu) of the marginal ray at the first vertex and the stop diameter it implies."""
         obj = self.system.object
-        a1, b1, c1, d1 = paraxial.matrix(front_steps)
+        a1, b1, c1, d1 = front
         if obj.at_infinity:
             if stop.size_kind == "numerical aperture":
                 return Unavailable("none: a numerical aperture needs an object at a finite distance")
