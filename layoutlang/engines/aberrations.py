@@ -163,15 +163,10 @@ def aim(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, iterations: i
     return ex, ey
 
 
-def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, aim_rays: bool = True
-           ) -> Rays:
-    """Rays from the object point at `field` through the stop at (px, py)·stop radius (aimed
-    at the real stop unless `aim_rays` is False), traced to the last boundary."""
-    if aim_rays:
-        ex, ey = aim(s, field, px, py)
-    else:
-        ex, ey = np.broadcast_arrays(np.atleast_1d(np.asarray(px, dtype=float)),
-                                     np.atleast_1d(np.asarray(py, dtype=float)))
+def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray) -> Rays:
+    """Rays from the object point at `field` through the stop at (px, py)·stop radius, aimed
+    at the real stop, traced to the last boundary."""
+    ex, ey = aim(s, field, px, py)
     return realrays.trace(_object_rays(s, field, ex, ey), s.geo, s.indices)
 
 

@@ -102,7 +102,6 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
         self.media_defined: dict[str, t.Node] = {}
         self.start: str | None = None
         self.boundaries: list[Boundary] = []
-        self.boundary_nodes: list[t.Node] = []
         self.gaps: list[Any] = []
         self.pending_gap: t.Gap | None = None
         self.current_medium: str | None = None
@@ -334,7 +333,6 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
         self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
-        self.boundary_nodes.append(node)
         self.current_medium = after
 
     def curvature(self, shape: t.Shape) -> Any:

@@ -13,7 +13,7 @@ Only `+ - * /` with ints are supported, which is all `engines.paraxial` uses.
 from __future__ import annotations
 
 from fractions import Fraction
-from typing import Any, Iterable
+from typing import Any
 
 __all__ = ["Ratio", "TooLarge", "RingContext", "FACTOR_ATOM_TERMS"]
 
@@ -429,10 +429,3 @@ def _as_expr(poly: Any, meaning: dict[Any, Any]) -> Any:
                 factors.append(symbol**power)
         terms.append(sp.Mul(*factors))
     return sp.Add(*terms)
-
-
-def gens_in(ratios: Iterable[Ratio]) -> set[Any]:
-    found: set[Any] = set()
-    for ratio in ratios:
-        found |= ratio.free_generators()
-    return found

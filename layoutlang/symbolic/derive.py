@@ -32,7 +32,8 @@ _LAYOUTS: dict[int, tuple[SymbolicPart, SymbolicLayout]] = {}
 
 
 def layout_for(part: SymbolicPart) -> SymbolicLayout:
-    """One SymbolicLayout per symbolic program (its matrix is shared by every request)."""
+    """One SymbolicLayout per symbolic program (its matrix is shared by every request); the
+    few most recent are kept, keyed by identity and checked against the part itself."""
     cached = _LAYOUTS.get(id(part))
     if cached is None or cached[0] is not part:
         try:
@@ -42,6 +43,8 @@ def layout_for(part: SymbolicPart) -> SymbolicLayout:
             raise LayoutValueError(f"this layout cannot be derived exactly: {error}",
                                    part.declared_at) from None
         cached = (part, layout)
+        if len(_LAYOUTS) >= 8:  # a session makes a new part per question: keep a few recent
+            _LAYOUTS.pop(next(iter(_LAYOUTS)))
         _LAYOUTS[id(part)] = cached
     return cached[1]
 

@@ -178,10 +178,6 @@ class SymbolicLayout:
         method: Callable[[], Any] = _METHODS[name]
         return method(self)
 
-    def _afocal(self) -> bool:
-        a, b, c, d = self._matrix()
-        return c.is_zero()
-
     def _focal(self, name: str) -> Ratio | Unavailable:
         a, b, c, d = self._matrix()
         if c.is_zero():

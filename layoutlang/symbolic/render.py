@@ -232,7 +232,7 @@ def text(outcome: Outcome) -> str:
 # --- LaTeX -----------------------------------------------------------------------------------
 
 def _tex_name(name: str) -> str:
-    return r"\text{" + name.replace("-", "-") + "}"
+    return r"\text{" + name + "}"
 
 
 def latex(outcome: Outcome) -> str:
