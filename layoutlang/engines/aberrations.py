@@ -31,7 +31,7 @@ from .realrays import OK, STATUS_WORDS, Geometry, Rays
 __all__ = [
     "MarginalRow", "ChiefRow", "SpotRow", "RayAnalysis", "RaySetup",
     "analyse", "setup", "aim", "launch", "spot", "marginal", "chief", "best_focus_shift",
-    "DEFAULT_WAVELENGTH_NM", "wavelength_sets", "indices_at",
+    "DEFAULT_WAVELENGTH_NM", "wavelength_sets",
 ]
 
 DEFAULT_WAVELENGTH_NM = 587.6  # helium d line, used when the script names no wavelength
@@ -67,16 +67,8 @@ def wavelength_sets(system: System) -> list[tuple[float, tuple[Any, ...]]]:
     if primary is None:
         return [(DEFAULT_WAVELENGTH_NM * nm, tuple(float(n) for n in system.indices()))]
     ordered = [primary] + [w for w in system.wavelengths if w is not primary]
-    return [(float(w.value), tuple(float(n) for n in indices_at(system, w.value)))
+    return [(float(w.value), tuple(float(n) for n in system.indices(w.value)))
             for w in ordered]
-
-
-def indices_at(system: System, wavelength: float) -> list[Any]:
-    """The index of each space at a wavelength (layout units)."""
-    try:
-        return system.indices(wavelength)
-    except TypeError:  # a layout value without dispersion support: constant indices
-        return system.indices()
 
 
 def setup(system: System, results: FirstOrder | None = None,
@@ -324,10 +316,12 @@ def pupil_grid(points: int) -> tuple[np.ndarray, np.ndarray]:
     return px[inside], py[inside]
 
 
-def spot(s: RaySetup, field: float, points: int = 17, z: float | None = None) -> SpotRow:
-    """RMS and largest radius (about the centroid) of the spot of a pupil grid on a plane."""
-    px, py = pupil_grid(points)
-    rays = launch(s, field, px, py)
+def spot(s: RaySetup, field: float, points: int = 17, z: float | None = None,
+         rays: Rays | None = None) -> SpotRow:
+    """RMS and largest radius (about the centroid) of the spot of a pupil grid on a plane
+    (`rays`: that grid already launched at this field, to trace it only once)."""
+    if rays is None:
+        rays = launch(s, field, *pupil_grid(points))
     x, y = _to_plane(rays, s.image_z if z is None else z)
     used = rays.ok & np.isfinite(x) & np.isfinite(y)
     lost = _lost_words(rays, s.geo)
@@ -340,11 +334,12 @@ def spot(s: RaySetup, field: float, points: int = 17, z: float | None = None) ->
                    float(math.sqrt(r2.max())), lost)
 
 
-def best_focus_shift(s: RaySetup, points: int = 17) -> Value:
+def best_focus_shift(s: RaySetup, points: int = 17, rays: Rays | None = None) -> Value:
     """Distance (along the path) from the paraxial focus to the plane of least RMS spot of the
-    axial bundle. Closed form: the RMS radius is quadratic in the plane's position."""
-    px, py = pupil_grid(points)
-    rays = launch(s, 0.0, px, py)
+    axial bundle. Closed form: the RMS radius is quadratic in the plane's position.
+    (`rays`: the axial pupil grid already launched, to trace it only once.)"""
+    if rays is None:
+        rays = launch(s, 0.0, *pupil_grid(points))
     used = rays.ok
     if used.sum() < 2:
         return Unavailable("none: too few rays reach the image")
@@ -428,8 +423,10 @@ def analyse(system: System, settings: RaySettings = RaySettings(),
     fields = (0.0,) if no_field else settings.fields  # every fraction of a zero field is 0
     margins = tuple(marginal(primary, settings.pupils))
     chiefs = tuple(chief(primary, fields))
-    spots = tuple(spot(s, f, settings.grid) for f in fields for s in setups)
-    best = best_focus_shift(primary, settings.grid)
+    axial = launch(primary, 0.0, *pupil_grid(settings.grid))  # one trace for spot and focus
+    spots = tuple(spot(s, f, settings.grid, rays=axial if f == 0.0 and s is primary else None)
+                  for f in fields for s in setups)
+    best = best_focus_shift(primary, settings.grid, rays=axial)
     units = system.units
     focus_verdict = _focus_verdict(margins, dof, settings.tolerance, units)
     height_verdict = _height_verdict(chiefs, airy, settings.tolerance, units)

@@ -7,13 +7,15 @@ fraction for distortion) or an `Unavailable` with the reason in words.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..system import System
-from .aberrations import RayAnalysis, analyse, indices_at, setup, spot
 from .firstorder import FirstOrder, Unavailable, first_order
 from .raysettings import RaySettings
 from .seidel import SeidelSums, seidel
+
+if TYPE_CHECKING:  # the ray analysis needs numpy: imported where rays are traced
+    from .aberrations import RayAnalysis
 
 __all__ = ["RayQuantities", "ray_quantities", "SEIDEL_FIELDS"]
 
@@ -51,6 +53,8 @@ class RayQuantities:
     @property
     def analysis(self) -> RayAnalysis:
         if self._analysis is None:
+            from .aberrations import analyse
+
             self._analysis = analyse(self.system, self.settings, self.results)
         return self._analysis
 
@@ -62,6 +66,8 @@ class RayQuantities:
 
     def _spot(self, field: float, wavelength: float | None):
         """The spot row at a field fraction and wavelength (primary when None)."""
+        from .aberrations import setup, spot
+
         a = self.analysis
         if wavelength is None:
             return a.spot_at(field)
@@ -69,8 +75,7 @@ class RayQuantities:
             if abs(made.wavelength - wavelength) <= 1e-9 * wavelength:
                 break
         else:  # a wavelength the layout does not list: its own indices, the same image plane
-            made = setup(self.system, self.results, indices_at(self.system, wavelength),
-                         wavelength)
+            made = setup(self.system, self.results, self.system.indices(wavelength), wavelength)
             if isinstance(made, Unavailable):
                 return made
         for row in a.spots:

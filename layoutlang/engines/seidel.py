@@ -175,7 +175,5 @@ def _dispersions(system: System) -> list[float]:
     ends = colour_ends(system)
     if ends is None:
         return [0.0] * (len(system.boundaries) + 1)
-    from .aberrations import indices_at
-
-    short, long = indices_at(system, ends[0]), indices_at(system, ends[1])
+    short, long = system.indices(ends[0]), system.indices(ends[1])
     return [float(a) - float(b) for a, b in zip(short, long)]
