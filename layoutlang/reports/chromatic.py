@@ -52,9 +52,9 @@ def setting_lines(program: Program) -> list[str]:
 
 
 def _table(rows: list[list[str]]) -> list[str]:
-    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
-    return ["  " + "  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip()
-            for row in rows]
+    from .text import aligned
+
+    return aligned(rows)
 
 
 def colour_lines(program: Program, results: FirstOrder) -> list[str]:
@@ -137,11 +137,12 @@ def colour_json(program: Program, results: FirstOrder) -> dict:
     """The same content for machines (12 significant digits, stable keys)."""
     from ..engines.chromatic import colour_table, evaluate
     from ..materials.environment import describe_environment
+    from .machine import round12
 
     def number(value):
         if isinstance(value, Unavailable):
             return {"value": None, "why": value.reason}
-        return {"value": float(f"{float(value):.12g}")}
+        return {"value": round12(float(value))}
 
     system = program.system
     data: dict[str, Any] = {}
@@ -153,7 +154,7 @@ def colour_json(program: Program, results: FirstOrder) -> dict:
     table = colour_table(system, results)
     if table is not None:
         data["per_wavelength"] = [{
-            "wavelength_nm": float(f"{to_nanometres(w, system.units):.12g}"),
+            "wavelength_nm": round12(to_nanometres(w, system.units)),
             "focal_length": number(table.focal_length if isinstance(table.focal_length,
                                                                     Unavailable)
                                    else table.focal_length[i]),

@@ -10,10 +10,10 @@ from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, REPORT_ORDER
 from .text import SIGN_CONVENTION
 
-__all__ = ["program_json", "check_json", "dumps"]
+__all__ = ["round12", "program_json", "check_json", "dumps"]
 
 
-def _round(value: float) -> float:
+def round12(value: float) -> float:
     """Twelve significant digits: enough for any optics, stable across platforms."""
     return float(f"{value:.12g}")
 
@@ -22,7 +22,7 @@ def _quantity(name: str, value, units: str) -> dict:
     kind = QUANTITIES[name].kind
     if isinstance(value, Unavailable):
         return {"value": None, "unit": display_unit(kind, units), "why": value.reason}
-    return {"value": _round(to_display(value, kind, units)), "unit": display_unit(kind, units)}
+    return {"value": round12(to_display(value, kind, units)), "unit": display_unit(kind, units)}
 
 
 def _checks(checked: list[CheckResult]) -> list[dict]:
@@ -54,11 +54,11 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
         "cautions": _cautions(program),
         "boundaries": [{
             "name": b.name, "kind": b.kind,
-            "radius": None if b.curvature == 0 else _round(1 / b.curvature),
-            "focal_length": _round(1 / b.power) if b.power else None,
+            "radius": None if b.curvature == 0 else round12(1 / b.curvature),
+            "focal_length": round12(1 / b.power) if b.power else None,
             "medium_after": b.medium_after,
-            "gap_after": _round(system.gaps[i]) if i < len(system.gaps) else None,
-            "clear_diameter": None if b.clear_diameter is None else _round(b.clear_diameter),
+            "gap_after": round12(system.gaps[i]) if i < len(system.gaps) else None,
+            "clear_diameter": None if b.clear_diameter is None else round12(b.clear_diameter),
         } for i, b in enumerate(system.boundaries)],
         "first_order": {name: _quantity(name, results[name], units) for name in REPORT_ORDER},
         "notes": list(results.notes),

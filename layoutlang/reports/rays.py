@@ -12,14 +12,13 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, FIELD_DEFAULTS
 from ..testing import format_number
+from .text import aligned
 
 __all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines", "rays_json"]
 
 
 def _table(rows: list[list[str]], indent: str = "    ") -> list[str]:
-    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
-    return [indent + "  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip()
-            for row in rows]
+    return aligned(rows, indent)
 
 
 def _len(value, units: str) -> str:
@@ -184,7 +183,9 @@ def ray_sections(program: Program, results: FirstOrder) -> list[str]:
 def _json_value(value):
     if isinstance(value, Unavailable):
         return {"value": None, "why": value.reason}
-    return float(f"{value:.12g}")
+    from .machine import round12
+
+    return round12(value)
 
 
 def rays_json(program: Program, results: FirstOrder) -> dict:

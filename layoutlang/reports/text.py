@@ -16,8 +16,18 @@ from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
 from ..testing import format_number
 
-__all__ = ["image_plane_words", "SIGN_CONVENTION", "LAYOUT_HEADINGS", "layout_rows", "layout_table", "first_order_table", "expectation_lines",
-           "full_report", "describe_value"]
+__all__ = [
+    "aligned",
+    "image_plane_words",
+    "SIGN_CONVENTION",
+    "LAYOUT_HEADINGS",
+    "layout_rows",
+    "layout_table",
+    "first_order_table",
+    "expectation_lines",
+    "full_report",
+    "describe_value",
+]
 
 SIGN_CONVENTION = (
     "signs: light starts travelling in +z; distances are measured along the path and are "
@@ -25,7 +35,8 @@ SIGN_CONVENTION = (
 )
 
 
-def _table(rows: list[list[str]], indent: str = "  ") -> list[str]:
+def aligned(rows: list[list[str]], indent: str = "  ") -> list[str]:
+    """Rows of cells as text lines with aligned columns (every report's tables)."""
     widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
     return [indent + "  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip()
             for row in rows]
@@ -64,7 +75,7 @@ def layout_table(system: System) -> list[str]:
     """The boundaries as an aligned text table, after the starting medium."""
     start = format_number(system.indices()[0])
     lines = [f"  light starts in {system.start_medium} (index {start})"]
-    return lines + _table([LAYOUT_HEADINGS] + layout_rows(system))
+    return lines + aligned([LAYOUT_HEADINGS] + layout_rows(system))
 
 
 def _setting_lines(system: System) -> list[str]:
@@ -135,7 +146,7 @@ def first_order_table(results: FirstOrder, units: str, names: list[str] | None =
         if names is None and name == "afocal angular magnification" and not results.afocal:
             continue
         rows.append([name, describe_value(name, value, units)])
-    return _table(rows)
+    return aligned(rows)
 
 
 def expectation_lines(checked: list[CheckResult]) -> list[str]:
@@ -144,7 +155,7 @@ def expectation_lines(checked: list[CheckResult]) -> list[str]:
         e = result.expectation
         rows.append(["holds" if result.passed else "FAILS", f"line {e.span.line}",
                      result.outcome.message])
-    return _table(rows) if rows else ["  (none)"]
+    return aligned(rows) if rows else ["  (none)"]
 
 
 def full_report(program: Program, results: FirstOrder, checked: list[CheckResult]) -> str:

@@ -338,7 +338,9 @@ def _structured_code(part: SymbolicPart, d: Derived) -> str:
 # --- JSON ------------------------------------------------------------------------------------
 
 def _round(value: float | None) -> float | None:
-    return None if value is None else float(f"{value:.12g}")
+    from ..reports.machine import round12
+
+    return None if value is None else round12(value)
 
 
 def json_text(outcome: Outcome) -> str:
