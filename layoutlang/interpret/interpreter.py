@@ -27,7 +27,8 @@ from .materialstatements import MaterialStatements
 from .symbolstatements import SymbolicStatements
 from ..engines.raysettings import RaySettings
 
-__all__ = ["Expectation", "Program", "interpret", "load_file", "PREDEFINED_MEDIA"]
+__all__ = ["Expectation", "Program", "interpret", "check_statements", "load_file",
+           "PREDEFINED_MEDIA"]
 
 #: Media every script knows without defining them.
 PREDEFINED_MEDIA = {"air": 1.0, "vacuum": 1.0}
@@ -86,6 +87,12 @@ def load_file(path: str | Path) -> Program:
 def interpret(script: t.Script, base: Path | None = None) -> Program:
     """Build the Program of a parsed script (`base` resolves `use "file"`)."""
     return _Interpreter(script, base or Path.cwd()).run()
+
+
+def check_statements(script: t.Script, base: Path | None = None) -> None:
+    """Run a script's statements for their errors only, as for a layout still being built
+    (no surface yet, a gap waiting for its surface): the whole-layout checks are skipped."""
+    _Interpreter(script, base or Path.cwd()).run_statements()
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
@@ -201,17 +208,24 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
         from ..nesting import TOO_DEEP, room_for_nesting
 
         with room_for_nesting():
-            for statement in self.script.statements:
-                try:
-                    self.execute(statement)
-                except RecursionError:
-                    raise LayoutValueError(TOO_DEEP, self.span(statement)) from None
+            self.run_statements()
             try:
                 return self.finish()
             except TypeError as error:  # a symbol where a number must be compared
                 raise self.symbolic_type_error(error, None) from None
             except RecursionError:
                 raise LayoutValueError(TOO_DEEP, self.span(self.script)) from None
+
+    def run_statements(self) -> None:
+        """Every statement in order, without the whole-layout checks of `finish`."""
+        from ..nesting import TOO_DEEP, room_for_nesting
+
+        with room_for_nesting():
+            for statement in self.script.statements:
+                try:
+                    self.execute(statement)
+                except RecursionError:
+                    raise LayoutValueError(TOO_DEEP, self.span(statement)) from None
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)

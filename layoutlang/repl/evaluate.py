@@ -76,7 +76,5 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
         return Snapshot(tuple(statements), program, results, tuple(checked))
     # Still being built: run every statement so a wrong one is caught now, but skip the
     # whole-layout checks that only make sense once it is complete.
-    run = interpreter._Interpreter(script, base or Path.cwd())  # the statement-level half
-    for statement in script.statements:
-        run.execute(statement)
+    interpreter.check_statements(script, base)
     return Snapshot(tuple(statements), incomplete=reason)
