@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import base64
 import html
-import math
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -20,8 +19,7 @@ from ..interpret.interpreter import Program
 from ..quantities import REPORT_ORDER
 from ..system import System
 from ..testing import format_number
-from .text import (LAYOUT_HEADINGS, SIGN_CONVENTION, describe_value, image_plane_words,
-                   layout_rows)
+from .text import LAYOUT_HEADINGS, SIGN_CONVENTION, describe_value, layout_rows
 
 __all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
            "latex_document"]
@@ -57,34 +55,10 @@ def _length(value: Any, units: str) -> str:
 
 
 def setting_lines(system: System) -> list[str]:
-    """The object, stop, image plane and wavelengths in words."""
-    units = system.units
-    obj = system.object
-    if obj.at_infinity:
-        lines = [f"object at infinity, field angle "
-                 f"{format_number(math.degrees(obj.field_angle))} deg"]
-    else:
-        side = "before" if obj.distance >= 0 else "after (a virtual object)"
-        lines = [f"object {_length(abs(obj.distance), units)} {side} the first boundary, "
-                 f"height {_length(obj.height, units)}"]
-    stop = system.stop
-    if stop is None:
-        lines.append("no stop given (pupils and f-number are not computed)")
-    else:
-        where = (f"{_length(-stop.offset, units)} before the first boundary" if stop.after < 0 else
-                 f"at {system.boundaries[stop.after].name}" if stop.offset == 0 else
-                 f"{_length(stop.offset, units)} after {system.boundaries[stop.after].name}")
-        size = (f"diameter {_length(stop.size, units)}" if stop.size_kind == "diameter" else
-                f"sized by {stop.size_kind} {format_number(stop.size)}")
-        lines.append(f"stop {where}, {size}")
-    lines.append("image plane " + image_plane_words(system))
-    if system.wavelengths:
-        from ..measure import to_nanometres
+    """The object, stop, image plane and wavelengths in words (as the text report says them)."""
+    from .text import setting_lines as text_lines
 
-        lines.append("wavelengths " + ", ".join(
-            f"{format_number(to_nanometres(w.value, units))} nm" + (" (primary)" if w.primary else "")
-            for w in system.wavelengths))
-    return lines
+    return [line.strip() for line in text_lines(system)]
 
 
 def _equations(program: Program) -> list[tuple[str, str, str]]:

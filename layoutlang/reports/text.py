@@ -19,6 +19,7 @@ from ..testing import format_number
 __all__ = [
     "aligned",
     "image_plane_words",
+    "setting_lines",
     "SIGN_CONVENTION",
     "LAYOUT_HEADINGS",
     "layout_rows",
@@ -78,7 +79,8 @@ def layout_table(system: System) -> list[str]:
     return lines + aligned([LAYOUT_HEADINGS] + layout_rows(system))
 
 
-def _setting_lines(system: System) -> list[str]:
+def setting_lines(system: System) -> list[str]:
+    """The object, stop, image plane and wavelengths in words, indented for the report."""
     units = system.units
     obj = system.object
     if obj.at_infinity:
@@ -169,13 +171,13 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
         lines += [""] + [CAUTIONS[kind] for kind in program.hazards] + [GENERAL]
     lines += ["", "boundaries"]
     lines += layout_table(system)
-    lines += ["", "setting"] + _setting_lines(system)
+    lines += ["", "setting"] + setting_lines(system)
     colour = program.colour is not None or program.warnings
     if colour:  # surroundings and dispersive media (reports/chromatic.py)
-        from .chromatic import has_colour, setting_lines
+        from .chromatic import has_colour, setting_lines as material_lines
 
         colour = has_colour(program)
-        lines += setting_lines(program) if colour else []
+        lines += material_lines(program) if colour else []
     lines += ["", "first-order properties"] + first_order_table(results, system.units)
     for note in results.notes:
         lines.append(f"  note: {note}")
