@@ -63,6 +63,9 @@ def main(argv: Sequence[str] | None = None) -> int:
 
             return run_command(args)
         return _check(args.files, args.json, args.junit)
+    except LayoutError as error:  # the one place a script error becomes a message
+        print(error, file=sys.stderr)
+        return EXIT_ERROR
     except KeyboardInterrupt:
         return 130
     except BrokenPipeError:
@@ -88,11 +91,7 @@ def _evaluate(path: str):
 
 
 def _run(path: str, as_json: bool) -> int:
-    try:
-        program, results, checked = _evaluate(path)
-    except LayoutError as error:
-        print(error, file=sys.stderr)
-        return EXIT_ERROR
+    program, results, checked = _evaluate(path)
     if as_json:
         from .reports.machine import dumps, program_json
 

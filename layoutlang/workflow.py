@@ -10,11 +10,11 @@ import argparse
 import sys
 from pathlib import Path
 
+from .cli import EXIT_ERROR, EXIT_FAILED, EXIT_OK
 from .errors import LayoutError
 
 __all__ = ["add_commands", "run_command", "write_junit", "DRAWING_FORMATS", "REPORT_FORMATS"]
 
-EXIT_OK, EXIT_FAILED, EXIT_ERROR = 0, 1, 2
 DRAWING_FORMATS = ("svg", "png", "pdf")
 REPORT_FORMATS = ("md", "html", "latex")
 
@@ -43,16 +43,12 @@ def add_commands(commands) -> None:
 
 
 def run_command(args: argparse.Namespace) -> int:
-    """Run one of the workflow commands; LayoutErrors become messages and exit status 2."""
-    try:
-        if args.command == "format":
-            return _format(args.files, args.check, args.diff)
-        if args.command == "draw":
-            return _draw(args.file, args.output, args.rays == "exact")
-        return _report(args.file, args.doc_format, args.output)
-    except LayoutError as error:
-        print(error, file=sys.stderr)
-        return EXIT_ERROR
+    """Run one of the workflow commands (a LayoutError reaches `cli.main`, which prints it)."""
+    if args.command == "format":
+        return _format(args.files, args.check, args.diff)
+    if args.command == "draw":
+        return _draw(args.file, args.output, args.rays == "exact")
+    return _report(args.file, args.doc_format, args.output)
 
 
 def _format(paths: list[str], check: bool, show_diff: bool) -> int:

@@ -9,7 +9,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from ..errors import LayoutError, LayoutValueError
+from ..errors import LayoutValueError
 
 __all__ = ["add_command", "run"]
 
@@ -26,30 +26,27 @@ def add_command(commands) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    """Print what a symbolic script derives (a LayoutError reaches `cli.main`)."""
     from ..interpret.interpreter import load_file
 
-    try:
-        program = load_file(args.file)
-        if program.symbolic is None:
-            raise LayoutValueError(
-                f"{args.file} declares no symbols, so there is nothing to derive",
-                hint="declare some, e.g. 'symbols R d positive', and use them in the layout")
-        from . import render
+    program = load_file(args.file)
+    if program.symbolic is None:
+        raise LayoutValueError(
+            f"{args.file} declares no symbols, so there is nothing to derive",
+            hint="declare some, e.g. 'symbols R d positive', and use them in the layout")
+    from . import render
 
-        outcome = render.carry_out(program)
-        if args.latex:
-            output = render.latex(outcome)
-        elif args.python:
-            output = render.python_code(outcome)
-        elif args.json:
-            output = render.json_text(outcome)
-        elif args.markdown:
-            output = render.markdown(outcome)
-        else:
-            output = render.text(outcome)
-    except LayoutError as error:
-        print(error, file=sys.stderr)
-        return 2
+    outcome = render.carry_out(program)
+    if args.latex:
+        output = render.latex(outcome)
+    elif args.python:
+        output = render.python_code(outcome)
+    elif args.json:
+        output = render.json_text(outcome)
+    elif args.markdown:
+        output = render.markdown(outcome)
+    else:
+        output = render.text(outcome)
     sys.stdout.write(output)
     unanswered = any(d.unavailable for d in outcome.derived) or any(
         not s.roots and not s.general for s in outcome.solutions)
