@@ -82,13 +82,14 @@ class FormatResult:
 
 
 def _tokens(text: str, file: str):
-    """Every token the parser consumes, after checking the whole script parses."""
+    """The script's syntax tree and every token the parser consumes (parsing the whole script
+    first raises LayoutSyntaxError with file:line:column and a caret)."""
     from .syntax.parser import parse, parser
 
-    parse(text, file)  # raises LayoutSyntaxError with file:line:column and a caret
+    script = parse(text, file)
     source = text if text.endswith("\n") else text + "\n"
     interactive = parser().parse_interactive(source)
-    return source, list(interactive.iter_parse())
+    return script, source, list(interactive.iter_parse())
 
 
 def _joint(prev, token, source: str, before_prev) -> str:
@@ -276,10 +277,10 @@ def format_text(text: str, file: str = "<script>") -> str:
     """
     from .syntax.parser import parse
 
-    source, tokens = _tokens(text, file)
+    script, source, tokens = _tokens(text, file)
     lines, head = _lines(source, tokens)
     formatted = _render(_align_operators(lines), head)
-    before = _same_values(parse(text, file).statements)
+    before = _same_values(script.statements)
     if _same_values(parse(formatted, file).statements) != before:
         raise LayoutError(f"{file}: formatting would change what the script says; "
                           "left unchanged (please report this)")
