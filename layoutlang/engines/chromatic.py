@@ -27,7 +27,7 @@ import numpy as np
 
 from ..system import System
 from . import paraxial
-from .firstorder import FirstOrder, Unavailable, first_order
+from .firstorder import RELATIVE_ZERO, FirstOrder, Unavailable, first_order
 from .paraxial import TRANSFER
 
 __all__ = [
@@ -39,10 +39,6 @@ __all__ = [
 MEDIUM_QUANTITIES = frozenset({"abbe number", "refractive index", "relative partial dispersion"})
 #: Chromatic quantities of the whole layout.
 LAYOUT_QUANTITIES = frozenset({"axial colour", "lateral colour", "secondary spectrum"})
-
-#: A denominator smaller than this fraction of its terms counts as zero (as in firstorder).
-_RELATIVE_ZERO = 1e-12
-
 
 @dataclass(frozen=True)
 class Request:
@@ -106,12 +102,12 @@ def image_distances(system: System, wavelengths: Any) -> np.ndarray | Unavailabl
     obj = system.object
     if obj.at_infinity:
         scale = sum(abs(s.value) for s in paraxial.steps_of(vector) if s.kind is not TRANSFER)
-        if np.any(np.abs(c) <= _RELATIVE_ZERO * np.maximum(np.abs(scale), 1e-300)):
+        if np.any(np.abs(c) <= RELATIVE_ZERO * np.maximum(np.abs(scale), 1e-300)):
             return Unavailable("at infinity (afocal layout)")
         return _full(paraxial.formulas.back_focal_distance(a, b, c, d, nk), shape)
     tau = obj.distance / n0
     denominator = paraxial.formulas.conjugate_denominator(a, b, c, d, tau)
-    if np.any(np.abs(denominator) <= _RELATIVE_ZERO * (np.abs(c * tau) + np.abs(d))):
+    if np.any(np.abs(denominator) <= RELATIVE_ZERO * (np.abs(c * tau) + np.abs(d))):
         return Unavailable("at infinity: the object is at the front focal point")
     return _full(paraxial.formulas.image_distance(a, b, c, d, tau, nk), shape)
 
@@ -123,7 +119,7 @@ def focal_lengths(system: System, wavelengths: Any) -> np.ndarray | Unavailable:
     a, b, c, d = paraxial.matrix(paraxial.steps_of(vector))
     c = _full(c, values.shape)
     scale = sum(abs(s.value) for s in paraxial.steps_of(vector) if s.kind is not TRANSFER)
-    if np.any(np.abs(c) <= _RELATIVE_ZERO * np.maximum(np.abs(scale), 1e-300)):
+    if np.any(np.abs(c) <= RELATIVE_ZERO * np.maximum(np.abs(scale), 1e-300)):
         return Unavailable("none: the layout is afocal")
     return _full(nk / -c, values.shape)
 

@@ -567,14 +567,18 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
                                 or is_ray_quantity(node.quantity.text)):
             return self.ray_expectation(node)
         info = self.quantity(node.quantity)
-        convert = {LENGTH: lambda e: self.length(e, "the expected value"),
-                   POWER: lambda e: self.power(e, "the expected value"),
-                   NUMBER: lambda e: self.number(e, "the expected value")}[info.kind]
+        convert = self.converter(info.kind, "the expected value")
         expected = convert(node.value)
         tolerance, relative = self.tolerance(node, convert)
         span = self.span(node)
         return Expectation(info.name, info.kind, node.op, expected, tolerance, relative, span,
                            span.line_text.strip(), request=request)
+
+    def converter(self, kind: str, what: str):
+        """The reading of an expression as a quantity of this kind (length, power, number)."""
+        return {LENGTH: lambda e: self.length(e, what),
+                POWER: lambda e: self.power(e, what),
+                NUMBER: lambda e: self.number(e, what)}[kind]
 
     def tolerance(self, node: t.Expect, convert, percent_allowed: bool = True):
         """(tolerance, relative) of an expectation: '± T' in the quantity's unit, or a

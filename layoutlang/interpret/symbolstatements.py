@@ -14,7 +14,7 @@ from dataclasses import replace
 from typing import Any
 
 from ..errors import LayoutNameError, LayoutValueError
-from ..quantities import LENGTH, NUMBER, POWER
+from ..quantities import NUMBER
 from ..syntax import tree as t
 
 __all__ = ["SymbolicStatements"]
@@ -115,10 +115,7 @@ class SymbolicStatements:
     def _target(self, name: str, expr: t.Expr) -> Any:
         from ..quantities import lookup
 
-        kind = lookup(name).kind
-        return {LENGTH: lambda: self.length(expr, "the required value"),
-                POWER: lambda: self.power(expr, "the required value"),
-                NUMBER: lambda: self.number(expr, "the required value")}[kind]()
+        return self.converter(lookup(name).kind, "the required value")(expr)
 
     def statement_Solve(self, node: t.Solve) -> None:
         """solve NAME[, NAME] so that QUANTITY = VALUE [and QUANTITY = VALUE ...]"""

@@ -15,11 +15,11 @@ import sympy as sp
 from ..errors import LayoutError, LayoutValueError
 from ..interpret.expressions import ExpressionEvaluator
 from ..measure import Measure
+from .convert import MAX_DIGITS
 
 __all__ = ["SymbolicBackend", "SymbolicEvaluator", "MAX_DIGITS", "MAX_OPS"]
 
-#: Largest exact number (decimal digits) and largest expression (operations) accepted.
-MAX_DIGITS = 400
+#: The largest expression (operations) accepted; numbers are bounded by convert.MAX_DIGITS.
 MAX_OPS = 2000
 
 
