@@ -43,11 +43,9 @@ class FirstOrderResults(FirstOrder):
 
     def rows(self) -> list[tuple[str, str]]:
         """(quantity, value with unit or the reason there is none), in report order."""
-        from .reports.text import describe_value
+        from .reports.text import first_order_rows
 
-        return [(name, describe_value(name, self.values[name], self.units))
-                for name in REPORT_ORDER if name in self.values
-                and not (name == "afocal angular magnification" and not self.afocal)]
+        return [(name, value) for name, value in first_order_rows(self, self.units)]
 
     def _repr_html_(self) -> str:
         body = "".join(f"<tr><td>{html.escape(n)}</td><td>{html.escape(v)}</td></tr>"

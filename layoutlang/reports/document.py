@@ -16,10 +16,9 @@ from typing import Any
 from ..checks import CheckResult
 from ..engines.firstorder import FirstOrder
 from ..interpret.interpreter import Program
-from ..quantities import REPORT_ORDER
 from ..system import System
 from ..testing import format_number
-from .text import LAYOUT_HEADINGS, SIGN_CONVENTION, describe_value, layout_rows
+from .text import LAYOUT_HEADINGS, SIGN_CONVENTION, first_order_rows, layout_rows
 
 __all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
            "latex_document"]
@@ -79,11 +78,7 @@ def gather(program: Program, results: FirstOrder, checked: list[CheckResult]) ->
 
     system = program.system
     units = system.units
-    first = []
-    for name in REPORT_ORDER:
-        if name == "afocal angular magnification" and not results.afocal:
-            continue
-        first.append([name, describe_value(name, results[name], units)])
+    first = first_order_rows(results, units)
     expectations = [["holds" if r.passed else "FAILS", str(r.expectation.span.line),
                      r.expectation.text, r.outcome.message] for r in checked]
     hazards = tuple(getattr(program, "hazards", ()) or ())

@@ -24,6 +24,7 @@ __all__ = [
     "LAYOUT_HEADINGS",
     "layout_rows",
     "layout_table",
+    "first_order_rows",
     "first_order_table",
     "expectation_lines",
     "full_report",
@@ -141,14 +142,16 @@ def describe_value(name: str, value, units: str) -> str:
     return text
 
 
+def first_order_rows(results: FirstOrder, units: str,
+                     names: list[str] | None = None) -> list[list[str]]:
+    """[quantity, value with unit or why there is none] for the named quantities, or for the
+    whole first-order report (the afocal magnification only for afocal layouts)."""
+    return [[name, describe_value(name, results[name], units)] for name in names or REPORT_ORDER
+            if names or name != "afocal angular magnification" or results.afocal]
+
+
 def first_order_table(results: FirstOrder, units: str, names: list[str] | None = None) -> list[str]:
-    rows = []
-    for name in names or REPORT_ORDER:
-        value = results[name]
-        if names is None and name == "afocal angular magnification" and not results.afocal:
-            continue
-        rows.append([name, describe_value(name, value, units)])
-    return aligned(rows)
+    return aligned(first_order_rows(results, units, names))
 
 
 def expectation_lines(checked: list[CheckResult]) -> list[str]:
