@@ -285,3 +285,22 @@ def test_errors_inside_a_used_file_name_that_file(tmp_path: Path) -> None:
 def test_load_file_that_does_not_exist(tmp_path: Path) -> None:
     with pytest.raises(LayoutFileError):
         load_file(tmp_path / "missing.lay")
+
+
+def test_a_declared_hazard_puts_its_caution_in_the_report() -> None:
+    # the usual caution for focused laser light (common practice: defer to the local
+    # laser-safety code and licensed practice)
+    from layoutlang.checks import evaluate_program
+    from layoutlang.reports.text import full_report
+
+    program = loads("hazard laser\nhazard laser\nstart in air\n"
+                               "lens l focal length 10\nimage at focus\n")
+    assert program.hazards == ("laser",)
+    report = full_report(program, *evaluate_program(program))
+    assert "CAUTION" in report and "laser" in report and "licensed practice" in report
+
+
+def test_an_unknown_hazard_names_the_known_ones() -> None:
+    with pytest.raises(LayoutNameError) as caught:
+        loads("hazard lazer\nstart in air\nlens l focal length 10\n")
+    assert caught.value.line == 1 and "did you mean 'laser'" in str(caught.value)
