@@ -7,26 +7,17 @@ Reported as a ratio measured in one run: the time of ten numpy `a*x+b` passes ov
 from __future__ import annotations
 
 import sys
-import time
 from pathlib import Path
 
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
+from _timing import best_of  # noqa: E402  (bench/ is on the path when run as a script)
 from layoutlang.engines import paraxial  # noqa: E402
 from layoutlang.engines.paraxial import REFRACTION, TRANSFER, Step  # noqa: E402
 
 SAMPLES, SURFACES, REPEATS = 1_000_000, 10, 7
-
-
-def best(function) -> float:
-    times = []
-    for _ in range(REPEATS):
-        start = time.perf_counter()
-        function()
-        times.append(time.perf_counter() - start)
-    return min(times)
 
 
 def main() -> float:
@@ -52,7 +43,8 @@ def main() -> float:
     for i in (0, SAMPLES // 2, SAMPLES - 1):
         ys, nus = paraxial.trace(float(y0[i]), float(nu0[i]), steps)
         assert abs(ys - y[i]) < 1e-9 and abs(nus - nu[i]) < 1e-12
-    ratio = best(streaming) / best(traced)
+    stream_time, trace_time = best_of(streaming, traced, repeats=REPEATS)
+    ratio = stream_time / trace_time
     print(f"paraxial trace, {SAMPLES:.0e} samples x {SURFACES} surfaces: "
           f"ratio to a*x+b streaming = {ratio:.2f} (goal >= 0.5)")
     return ratio

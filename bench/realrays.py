@@ -9,33 +9,17 @@ elements divided by the time of the trace. Goal >= 0.04.
 from __future__ import annotations
 
 import sys
-import time
 from pathlib import Path
 
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
+from _timing import best_of  # noqa: E402  (bench/ is on the path when run as a script)
 from layoutlang.engines import realrays  # noqa: E402
 from layoutlang.system import Boundary, Medium, System  # noqa: E402
 
 RAYS, SURFACES, REPEATS = 1_000_000, 10, 9
-
-
-def timed(function) -> float:
-    start = time.perf_counter()
-    function()
-    return time.perf_counter() - start
-
-
-def best_of(*functions) -> list[float]:
-    """The shortest time of each function, run interleaved so that a busy moment on a shared
-    machine slows them alike rather than one of them."""
-    times = [[] for _ in functions]
-    for _ in range(REPEATS):
-        for found, function in zip(times, functions):
-            found.append(timed(function))
-    return [min(found) for found in times]
 
 
 def layout() -> System:
@@ -77,7 +61,7 @@ def main() -> float:
     # one ray by the per-ray reference (a single-ray trace) gives the same answer
     one = realrays.trace(realrays.Rays.start(*(np.array([s[7]]) for s in start)), geo, indices)
     assert abs(one.y[0] - rays.y[7]) < 1e-12 and abs(one.ky[0] - rays.ky[7]) < 1e-15
-    stream_time, trace_time, copy_time = best_of(streaming, traced, copying)
+    stream_time, trace_time, copy_time = best_of(streaming, traced, copying, repeats=REPEATS)
     trace_time -= copy_time  # the copy only restores the starting rays
     ratio = stream_time / trace_time
     rate = RAYS * SURFACES / trace_time

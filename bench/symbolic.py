@@ -27,6 +27,7 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import sympy as sp  # noqa: E402
+from _timing import best_of  # noqa: E402  (bench/ is on the path when run as a script)
 
 from layoutlang.system import Boundary, Medium, ObjectSpec, System  # noqa: E402
 from layoutlang.symbolic import convert, flintring  # noqa: E402
@@ -64,13 +65,8 @@ def numeric_layout(k: int) -> tuple[System, list]:
 
 
 def best(function) -> float:
-    times = []
-    for _ in range(REPEATS):
-        sp.core.cache.clear_cache()  # no help from sympy's cache between repeats
-        start = time.perf_counter()
-        function()
-        times.append(time.perf_counter() - start)
-    return min(times)
+    # no help from sympy's cache between repeats
+    return best_of(function, repeats=REPEATS, before=sp.core.cache.clear_cache)[0]
 
 
 def ours(system: System, symbols: list, backend: str) -> tuple[float, int, object]:
