@@ -31,9 +31,10 @@ def display_unit(kind: str, units: str) -> str:
 
 def to_display(value, kind: str, units: str):
     """Convert an internal value (powers are per layout unit) to its display unit."""
-    if kind == POWER and isinstance(value, (int, float)):
+    number = isinstance(value, (int, float)) or type(value).__module__ == "numpy"
+    if kind == POWER and number:
         return value * 1000.0 / LENGTH_UNITS[units]
-    if kind == PERCENT and isinstance(value, (int, float)):
+    if kind == PERCENT and number:
         return value * 100.0
     return value
 
@@ -60,7 +61,11 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
         kind = expectation.kind
         label = expectation.quantity
         request = getattr(expectation, "request", None)
-        if request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
+        if type(request).__name__ == "YieldRequest":  # `expect yield` (tolerance/run.py)
+            from .tolerance.run import yield_value
+
+            value = yield_value(program, request)
+        elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
             from .engines.chromatic import evaluate
 
             value = evaluate(request, program.system, results)

@@ -44,6 +44,9 @@ def _parser() -> argparse.ArgumentParser:
     from .symbolic.command import add_command as add_derive  # no sympy until it runs
 
     add_derive(commands)
+    from .tolerance.command import add_command as add_tolerance  # numpy only when it runs
+
+    add_tolerance(commands)
     return parser
 
 
@@ -58,6 +61,10 @@ def main(argv: Sequence[str] | None = None) -> int:
             from .symbolic.command import run as derive
 
             return derive(args)
+        if args.command == "tolerance":
+            from .tolerance.command import run as tolerance
+
+            return tolerance(args)
         if args.command != "check":
             from .workflow import run_command
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_number"]
+__all__ = ["Outcome", "compare", "passes", "assert_quantity", "assert_script", "format_number"]
 
 
 def format_number(value: float, digits: int = 6) -> str:
@@ -61,19 +61,33 @@ def compare(
     if not isinstance(actual, (int, float)):
         return Outcome(False, actual, f"{quantity} is {actual}; expected {op} "
                        f"{_with_unit(expected, unit)}")
+    passed = passes(actual, op, expected, tolerance, relative)
     if op == "=":
         allowed = abs(tolerance * expected) if relative else abs(tolerance or 0.0)
-        passed = abs(actual - expected) <= allowed * (1 + 1e-12)
         tol_text = (f"± {format_number(tolerance * 100)}% (± {_with_unit(allowed, unit)})"
                     if relative else f"± {_with_unit(allowed, unit)}")
         detail = (f"{quantity} = {_with_unit(actual, unit)}, expected "
                   f"{_with_unit(expected, unit)} {tol_text}; off by "
                   f"{_with_unit(actual - expected, unit)}")
     else:
-        passed = {"<": actual < expected, "<=": actual <= expected,
-                  ">": actual > expected, ">=": actual >= expected}[op]
         detail = f"{quantity} = {_with_unit(actual, unit)}, expected {op} {_with_unit(expected, unit)}"
     return Outcome(bool(passed), actual, detail)
+
+
+def passes(actual: Any, op: str, expected: float, tolerance: float | None = None,
+           relative: bool = False) -> Any:
+    """Whether `actual op expected` holds (with the tolerance for '='): the rule itself, for a
+    number or elementwise for a numpy array of built units (NaN never holds)."""
+    if op == "=":
+        allowed = abs(tolerance * expected) if relative else abs(tolerance or 0.0)
+        return abs(actual - expected) <= allowed * (1 + 1e-12)
+    if op == "<":
+        return actual < expected
+    if op == "<=":
+        return actual <= expected
+    if op == ">":
+        return actual > expected
+    return actual >= expected
 
 
 def assert_quantity(actual: Any, op: str, expected: float, tolerance: float | None = None,

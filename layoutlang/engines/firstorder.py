@@ -40,8 +40,26 @@ class Unavailable:
 Value = Any  # float | Unavailable
 
 
+def _every(condition: Any) -> bool:
+    """A branch condition for one layout, or for a batch of layouts (numpy arrays of
+    tolerance or optimisation samples): there it holds only when it holds for every sample, so
+    a batch takes the branch of its ordinary members and an odd sample shows up as a
+    non-finite number that the batch's consumer reports."""
+    try:
+        return bool(condition)
+    except ValueError:  # an array's truth value
+        return bool(condition.all())
+
+
+def _trace(y, nu, steps):
+    """`paraxial.trace` without touching the caller's values: the paraxial engine updates numpy
+    arrays in place (for streaming), and a batch's starting heights and angles are used again."""
+    own = [v.copy() if type(v).__module__ == "numpy" else v for v in (y, nu)]
+    return paraxial.trace(own[0], own[1], steps)
+
+
 def _is_zero(value: float, scale: float) -> bool:
-    return abs(value) <= RELATIVE_ZERO * scale
+    return _every(abs(value) <= RELATIVE_ZERO * scale)
 
 
 @dataclass(frozen=True)
@@ -105,7 +123,7 @@ class _Evaluation:
         phis = [s.value for s in self.steps if s.kind is not TRANSFER]
         self.power_scale = sum(abs(p) for p in phis)
         a, b, c, d = self.abcd
-        self.afocal = _is_zero(c, self.power_scale) or self.power_scale == 0
+        self.afocal = _is_zero(c, self.power_scale) or _every(self.power_scale == 0)
 
     def run(self) -> FirstOrder:
         self._cardinal_points()
@@ -171,7 +189,7 @@ class _Evaluation:
         v["image height"] = magnification * obj.height
         v["longitudinal magnification"] = (nk / n0) * magnification * magnification
         v["angular magnification"] = (
-            n0 / (nk * magnification) if magnification != 0 else Unavailable("none")
+            n0 / (nk * magnification) if _every(magnification != 0) else Unavailable("none")
         )
 
     # stop, pupils, marginal and chief rays
@@ -228,9 +246,9 @@ class _Evaluation:
             Unavailable("at infinity (telecentric in image space)") if exit_pupil_at_infinity
             else stop_diameter / abs(d2)
         )
-        y_last, nu_last = paraxial.trace(y0, nu0, self.steps)
+        y_last, nu_last = _trace(y0, nu0, self.steps)
         v["object numerical aperture"] = 0.0 if obj.at_infinity else abs(nu0)
-        if nu_last == 0 or _is_zero(nu_last, abs(y_last) * self.power_scale):
+        if _every(nu_last == 0) or _is_zero(nu_last, abs(y_last) * self.power_scale):
             v["numerical aperture"] = 0.0
             v["f-number"] = Unavailable("none: the beam leaves collimated")
         else:
@@ -266,16 +284,16 @@ class _Evaluation:
             return entrance / 2, 0.0, 2 * abs(y_stop)
         # finite object: a ray from the axial object point
         if stop.size_kind == "diameter":
-            y_unit, _ = paraxial.trace(0.0, 1.0, object_steps + front_steps)
-            if y_unit == 0:
+            y_unit, _ = _trace(0.0, 1.0, object_steps + front_steps)
+            if _every(y_unit == 0):
                 return Unavailable("none: the stop is imaged onto the object point")
             nu0 = (stop.size / 2) / abs(y_unit)
         elif stop.size_kind == "numerical aperture":
             nu0 = stop.size
         else:
             nu0 = 1 / (2 * stop.size)
-        y_vertex, nu_vertex = paraxial.trace(0.0, nu0, object_steps)
-        y_stop, _ = paraxial.trace(y_vertex, nu_vertex, front_steps)
+        y_vertex, nu_vertex = _trace(0.0, nu0, object_steps)
+        y_stop, _ = _trace(y_vertex, nu_vertex, front_steps)
         return y_vertex, nu_vertex, 2 * abs(y_stop)
 
     def _chief_start(self, object_steps, front):
@@ -284,15 +302,15 @@ class _Evaluation:
         a1, b1, c1, d1 = front
         if obj.at_infinity:
             nu0 = -self.n0 * math.tan(obj.field_angle)
-            if a1 == 0:
+            if _every(a1 == 0):
                 return Unavailable("none: the entrance pupil is at infinity")
             return -b1 * nu0 / a1, nu0
         tau = obj.distance / self.n0
         denominator = a1 * tau + b1
-        if denominator == 0:
+        if _every(denominator == 0):
             return Unavailable("none: the stop lies at the object")
         nu0 = -a1 * obj.height / denominator
-        return paraxial.trace(obj.height, nu0, object_steps)
+        return _trace(obj.height, nu0, object_steps)
 
     # along the axis
     def _lengths(self) -> None:

@@ -16,7 +16,7 @@ from typing import Any
 from ..system import IDEAL, MIRROR, System
 from .cross_section import CrossSection, cross_section
 
-__all__ = ["figure", "save_drawing", "drawing_bytes", "STYLE"]
+__all__ = ["figure", "save_drawing", "drawing_bytes", "figure_bytes", "STYLE"]
 
 #: Our colours: ink for outlines and labels, a pale blue-grey family for materials, a deep
 #: teal for rays of a single wavelength.
@@ -264,15 +264,25 @@ def save_drawing(system: System, path: str | Path, kind: str | None = None,
 def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = (),
                   exact: bool = True) -> bytes:
     """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
+    return figure_bytes(lambda: figure(system, hazards, exact), kind)
+
+
+def figure_bytes(make_figure, kind: str = "svg") -> bytes:
+    """The bytes of the figure `make_figure()` builds, written deterministically (fixed SVG id
+    salt, no dates, one font): every picture of layoutlang goes through here."""
     import io
 
     import matplotlib
 
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
     with matplotlib.rc_context({"svg.hashsalt": "layoutlang", "svg.fonttype": "none",
                                 "pdf.compression": 6, "font.family": "DejaVu Sans"}):
-        fig = figure(system, hazards, exact)
+        fig = make_figure()
         buffer = io.BytesIO()
         fig.savefig(buffer, format=kind, metadata=_METADATA[kind])
+    plt.close(fig)
     return buffer.getvalue()
 
 

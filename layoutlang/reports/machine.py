@@ -65,7 +65,19 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
         "expectations": _checks(checked),
         **_colour(program, results),
         **_rays(program, results),
+        **_tolerances(program),
     }
+
+
+def _tolerances(program: Program) -> dict:
+    """The tolerance analysis, when the script asks for it (reports/tolerance.py)."""
+    setup = getattr(program, "tolerances", None)
+    if setup is None or not setup.report:
+        return {}
+    from ..tolerance.run import analysis_of
+    from .tolerance import tolerance_json
+
+    return {"tolerances": tolerance_json(analysis_of(program))}
 
 
 def _rays(program: Program, results: FirstOrder) -> dict:

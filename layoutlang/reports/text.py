@@ -202,5 +202,10 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
         from .chromatic import colour_lines
 
         lines += colour_lines(program, results)
+    if program.tolerances is not None and program.tolerances.report:
+        from ..tolerance.run import analysis_of
+        from .tolerance import tolerance_lines
+
+        lines += tolerance_lines(analysis_of(program), system.units)
     lines += ["", "expectations"] + expectation_lines(checked)
     return "\n".join(lines) + "\n"

@@ -464,4 +464,54 @@ def _symbolic_builders() -> None:
 
 
 _symbolic_builders()
+
+
+def _tolerance_builders() -> None:
+    """The builder methods of grammar/tolerances.lark, kept together."""
+
+    def tolerance_on(self, meta, items):
+        (target, name), _, limit, distribution = items
+        return t.ToleranceOn(target, name, limit, distribution, pos=_pos(meta))
+
+    def tolerance_of(self, meta, items):
+        return items[0], _ident(items[1])
+
+    def tolerance_gap(self, meta, items):
+        return "gap", _ident(items[0])
+
+    def toleranced(self, meta, items):
+        return " ".join(str(token) for token in items)
+
+    def distribution_uniform(self, meta, items):
+        return t.Distribution("uniform", pos=_pos(meta))
+
+    def distribution_normal(self, meta, items):
+        return t.Distribution("normal", items[0] if items else None, pos=_pos(meta))
+
+    def distribution_end_points(self, meta, items):
+        return t.Distribution("end points", pos=_pos(meta))
+
+    def compensate_focus(self, meta, items):
+        return t.Compensate("focus", None, items[0], pos=_pos(meta))
+
+    def compensate_gap(self, meta, items):
+        return t.Compensate("gap", _ident(items[0]), items[1], pos=_pos(meta))
+
+    def monte_carlo(self, meta, items):
+        return t.MonteCarlo(items[0], items[1], pos=_pos(meta))
+
+    def report_tolerances(self, meta, items):
+        return t.ReportTolerances(pos=_pos(meta))
+
+    def expect_yield(self, meta, items):
+        quantity, op, value = items
+        return t.ExpectYield(quantity, op, value, pos=_pos(meta))
+
+    for method in (tolerance_on, tolerance_of, tolerance_gap, toleranced, distribution_uniform,
+                   distribution_normal, distribution_end_points, compensate_focus,
+                   compensate_gap, monte_carlo, report_tolerances, expect_yield):
+        setattr(_Builder, method.__name__, v_args(meta=True)(method))
+
+
+_tolerance_builders()
 _BUILDER = _Builder()

@@ -511,3 +511,58 @@ class ExpectSensitivity(Statement):
     op: str
     value: Expr
     tolerance: Tolerance | None = None
+
+
+# --- tolerances and yield (grammar/tolerances.lark) --------------------------------------------
+__all__ += ["Distribution", "ToleranceOn", "Compensate", "MonteCarlo", "ReportTolerances",
+            "ExpectYield"]
+
+
+@node
+class Distribution(Node):
+    """How a toleranced number is drawn: 'uniform', 'normal' (the limit is `sigmas` standard
+    deviations, truncated there; None: the default) or 'end points'."""
+
+    kind: str
+    sigmas: Expr | None = None
+
+
+@node
+class ToleranceOn(Statement):
+    """`tolerance radius of front ± 0.1 mm[, normal 2 sigma]` or `tolerance gap after front ± …`."""
+
+    target: str  # 'radius' | 'curvature' | 'index' | 'abbe number' | 'conic constant' | 'clear diameter' | 'gap'
+    name: Ident
+    limit: Expr
+    distribution: Distribution | None = None
+
+
+@node
+class Compensate(Statement):
+    """`compensate focus [within D]` or `compensate gap after NAME [within D]`."""
+
+    what: str  # 'focus' | 'gap'
+    name: Ident | None = None
+    limit: Expr | None = None
+
+
+@node
+class MonteCarlo(Statement):
+    """`monte carlo N samples[, seed S]`."""
+
+    samples: Expr
+    seed: Expr | None = None
+
+
+@node
+class ReportTolerances(Statement):
+    """`report tolerances`: the sensitivity table, the estimate and the Monte Carlo result."""
+
+
+@node
+class ExpectYield(Statement):
+    """`expect yield > 95 %` (every other expectation holds) or `expect yield of Q > 99 %`."""
+
+    quantity: Quantity | None
+    op: str
+    value: Expr
