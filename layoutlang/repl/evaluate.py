@@ -57,7 +57,7 @@ def _incomplete_reason(statements: tuple[t.Statement, ...]) -> str | None:
 
 
 def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
-             file: str = SESSION_FILE, text: str | None = None) -> Snapshot:
+             file: str = SESSION_FILE, script: t.Script | None = None) -> Snapshot:
     """Interpret the statements and evaluate the layout.
 
     The statements are read back from the text `save` would write (the file's own text with
@@ -67,7 +67,8 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
         statements: the layout statements (no session commands).
         base: the folder `use "file"` is resolved against.
         file: the name messages mention (the session's file, once it has one).
-        text: the script text that says `statements` (default: their canonical text).
+        script: the parsed script text that says `statements` (default: their canonical
+            text, parsed here).
 
     Returns:
         The snapshot (with results, or the reason the layout is not complete yet).
@@ -75,7 +76,8 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
     Raises:
         LayoutError: a statement is wrong (the caller keeps its earlier state).
     """
-    script = parse(unparse(statements) if text is None else text, file)
+    if script is None:
+        script = parse(unparse(statements), file)
     reason = _incomplete_reason(script.statements)
     if reason is None:
         program = interpreter.interpret(script, base=base)
