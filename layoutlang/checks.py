@@ -7,7 +7,7 @@ from dataclasses import dataclass
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
 from .quantities import PERCENT, POWER, RAY_QUANTITIES
-from .measure import LENGTH_UNITS, to_nanometres
+from .measure import LENGTH_UNITS
 from .testing import Outcome, compare
 
 __all__ = ["CheckResult", "check_program", "evaluate_program", "display_unit", "to_display"]
@@ -76,11 +76,7 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
             rays = ray_quantities(program.system, program.rays, results)
             value = rays.value(expectation.quantity, expectation.field, expectation.scale,
                                expectation.wavelength)
-            if expectation.field is not None:
-                label = f"{label} at field {expectation.field:g}"
-            if expectation.wavelength is not None:
-                nm = to_nanometres(expectation.wavelength, units)
-                label = f"{label} at {nm:.6g} nm"
+            label = expectation.label or label
             if expectation.scale:
                 label = f"size of the {label} in depths of focus"
         elif program.symbolic is not None and \

@@ -42,8 +42,8 @@ def _quantity_lines(before: Snapshot, after: Snapshot) -> list[str]:
     units = after.program.system.units
     rows = []
     for name in REPORT_ORDER:
-        old = before.results.values.get(name)
-        new = after.results.values.get(name)
+        old = before.results.get(name)
+        new = after.results.get(name)
         old_text = show_value(name, old, before.program.system.units)
         new_text = show_value(name, new, units)
         if old_text != new_text:
@@ -94,7 +94,7 @@ def describe_changes(before: Snapshot, after: Snapshot) -> list[str]:
     if not before.complete:
         lines = ["  the layout is complete; first-order results:"]
         for name in REPORT_ORDER:
-            value = after.results.values.get(name)
+            value = after.results.get(name)
             if not isinstance(value, Unavailable):
                 lines.append(f"    {name}: {show_value(name, value, after.program.system.units)}")
         return lines + _expectation_lines(before, after)
