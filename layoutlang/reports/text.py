@@ -210,6 +210,6 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
         from ..tolerance.run import analysis_of
         from .tolerance import tolerance_lines
 
-        lines += tolerance_lines(analysis_of(program), system.units)
+        lines += tolerance_lines(analysis_of(program), system.units, program.file)
     lines += ["", "expectations"] + expectation_lines(checked)
     return "\n".join(lines) + "\n"

@@ -45,12 +45,19 @@ def _unit(expectation, units: str) -> str:
     return display_unit(expectation.kind, units)
 
 
-def _label(expectation) -> str:
-    return f"line {expectation.span.line}: {expectation.quantity}"
+def _label(expectation, file: str = "") -> str:
+    """'line 12: focal length', or 'other.lay:12: …' for a line of a used file."""
+    from pathlib import Path
+
+    span = expectation.span
+    where = f"line {span.line}" if not file or span.file == file else \
+        f"{Path(span.file).name}:{span.line}"
+    return f"{where}: {expectation.quantity}"
 
 
-def tolerance_lines(result, units: str) -> list[str]:
-    """The section as text lines (no trailing blank)."""
+def tolerance_lines(result, units: str, file: str = "") -> list[str]:
+    """The section as text lines (no trailing blank); `file`: the script's own file, so that
+    expectations from used files are named by theirs."""
     setup = result.setup
     count = len(setup.items)
     lines = ["", "tolerances"]
@@ -67,7 +74,7 @@ def tolerance_lines(result, units: str) -> list[str]:
     lines += ["", "  sensitivity: each tolerance alone at + and − its limit, worst first "
                   "(share: of the expectation's margin)"]
     header = ["tolerance", "limit", "share"] + [
-        f"{_label(e)} ({_unit(e, units)})".replace(" ()", "") for e in expectations]
+        f"{_label(e, file)} ({_unit(e, units)})".replace(" ()", "") for e in expectations]
     rows = [header]
     for row in result.rows:
         cells = [row.item.label, limit_words(row.item, units), _percent(row.share)]
@@ -81,7 +88,7 @@ def tolerance_lines(result, units: str) -> list[str]:
     for e, nominal, sigma, room in zip(expectations, result.nominal, result.estimate,
                                        result.margins):
         unit = _unit(e, units)
-        rows.append([_label(e), f"{_num(nominal)} {unit}".rstrip(), _num(sigma),
+        rows.append([_label(e, file), f"{_num(nominal)} {unit}".rstrip(), _num(sigma),
                      _num(room)])
     lines += aligned(rows, "    ")
     monte = result.monte_carlo
@@ -97,12 +104,12 @@ def tolerance_lines(result, units: str) -> list[str]:
                  f"{_percent(low)} to {_percent(high)})")
     rows = [["expectation", "yield", "mean", "std dev", "1 %", "5 %", "50 %", "95 %", "99 %"]]
     for i, e in enumerate(expectations):
-        rows.append([_label(e), _percent(monte.yields[i]), _num(monte.means[i]),
+        rows.append([_label(e, file), _percent(monte.yields[i]), _num(monte.means[i]),
                      _num(monte.deviations[i])] + [_num(p) for p in monte.percentiles[i]])
     lines += aligned(rows, "    ")
     for i, e in enumerate(expectations):
         if monte.not_computed[i]:
-            lines.append(f"    note: {_label(e)} could not be computed for "
+            lines.append(f"    note: {_label(e, file)} could not be computed for "
                          f"{monte.not_computed[i]} units (counted as failing)")
     if result.one_by_one:
         lines.append("    note: taken unit by unit (not in the batched paraxial pass): "

@@ -40,6 +40,7 @@ def histogram_figure(result, units: str):
     import numpy as np
 
     from ..checks import display_unit
+    from ..testing import format_number
 
     monte = result.monte_carlo
     expectations = result.expectations
@@ -56,13 +57,31 @@ def histogram_figure(result, units: str):
         values = monte.values[panel]
         values = values[np.isfinite(values)]
         unit = display_unit(e.kind, units)
+        low = high = result.nominal[panel]
         if values.size:
-            axis.hist(values, bins=40, color=_BARS, edgecolor="white", linewidth=0.4)
+            axis.hist(values, bins=40, color=_BARS)
+            low, high = float(values.min()), float(values.max())
+        span = max(high - low, 1e-12 * max(abs(high), 1.0))
+        shown_low, shown_high = low - 0.6 * span, high + 0.6 * span
+        far = []
         for limit in _limits(e, units):
-            axis.axvline(limit, color=_LIMIT, linewidth=1.4, linestyle="--")
+            if shown_low - 2 * span <= limit <= shown_high + 2 * span:  # near: widen to show it
+                shown_low, shown_high = min(shown_low, limit - 0.1 * span), \
+                    max(shown_high, limit + 0.1 * span)
+                axis.axvline(limit, color=_LIMIT, linewidth=1.4, linestyle="--")
+            else:
+                far.append(limit)
+        axis.set_xlim(shown_low, shown_high)
+        for limit in far:  # a limit far off the distribution: said, not drawn to scale
+            left = limit < shown_low
+            axis.annotate(f"{'← ' if left else ''}limit {format_number(limit, 4)} {unit}"
+                          f"{'' if left else ' →'}".strip(), xy=(0.02 if left else 0.98, 0.92),
+                          xycoords="axes fraction", ha="left" if left else "right",
+                          fontsize=7, color=_LIMIT)
         axis.axvline(result.nominal[panel], color=_NOMINAL, linewidth=1.0)
-        axis.set_title(f"line {e.span.line}: {e.quantity} — yield "
-                       f"{monte.yields[panel] * 100:.1f} %", fontsize=9)
+        where = f"line {e.span.line}"
+        axis.set_title(f"{where}: {e.quantity} — yield "
+                       f"{format_number(monte.yields[panel] * 100, 4)} %", fontsize=9)
         axis.set_xlabel(f"{e.quantity} ({unit})" if unit else e.quantity, fontsize=8)
         axis.set_ylabel("units", fontsize=8)
         axis.tick_params(labelsize=7)

@@ -263,6 +263,21 @@ def _Solve(node: t.Solve) -> str:
     return f"solve {_names(node.unknowns)} so that {conditions}"
 
 
+def _ToleranceOn(node: t.ToleranceOn) -> str:
+    target = f"gap after {node.name.text}" if node.target == "gap" \
+        else f"{node.target} of {node.name.text}"
+    text = f"tolerance {target} ± {expression_text(node.limit)}"
+    d = node.distribution
+    if d is not None:
+        text += ", " + d.kind + ("" if d.sigmas is None else f" {expression_text(d.sigmas)} sigma")
+    return text
+
+
+def _Compensate(node: t.Compensate) -> str:
+    text = "compensate focus" if node.what == "focus" else f"compensate gap after {node.name.text}"
+    return text + ("" if node.limit is None else f" within {expression_text(node.limit)}")
+
+
 _RULES: dict[str, Callable] = {
     "Title": lambda n: f'layout "{n.text}"',
     "Units": lambda n: f"units {n.unit.text}",
@@ -305,6 +320,15 @@ _RULES: dict[str, Callable] = {
     + f" to {_names(n.symbols)}",
     "ExpectSensitivity": lambda n: f"expect sensitivity of {n.quantity.text} to "
     f"{n.symbol.text} {n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    # tolerances
+    "ToleranceOn": _ToleranceOn,
+    "Compensate": _Compensate,
+    "MonteCarlo": lambda n: f"monte carlo {expression_text(n.samples)} samples"
+    + ("" if n.seed is None else f", seed {expression_text(n.seed)}"),
+    "ReportTolerances": lambda n: "report tolerances",
+    "ExpectYield": lambda n: "expect yield"
+    + ("" if n.quantity is None else f" of {n.quantity.text}")
+    + f" {n.op} {expression_text(n.value)}",
     # commands of the interactive session
     "Change": _Change,
     "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",

@@ -95,7 +95,7 @@ def run(args: argparse.Namespace) -> int:
         from ..reports.tolerance import tolerance_lines
 
         lines = [f"layout: {program.system.title or args.file}"]
-        lines += tolerance_lines(result, program.system.units)
+        lines += tolerance_lines(result, program.system.units, program.file)
         lines += ["", "expectations"] + expectation_lines(checked)
         sys.stdout.write("\n".join(lines) + "\n")
     if result.monte_carlo is not None and result.monte_carlo.partial:
