@@ -12,7 +12,7 @@ from collections import Counter
 from ..checks import display_unit, to_display
 from ..engines.firstorder import Unavailable
 from ..quantities import QUANTITIES, REPORT_ORDER
-from ..testing import format_number
+from ..testing import with_unit
 from .evaluate import Snapshot
 
 __all__ = ["describe_changes", "show_value"]
@@ -25,7 +25,7 @@ def show_value(name: str, value, units: str) -> str:
     if isinstance(value, Unavailable):
         return str(value)
     kind = QUANTITIES[name].kind
-    return f"{format_number(to_display(value, kind, units))} {display_unit(kind, units)}".rstrip()
+    return with_unit(to_display(value, kind, units), display_unit(kind, units))
 
 
 def _difference(name: str, old, new, units: str) -> str:
@@ -34,7 +34,7 @@ def _difference(name: str, old, new, units: str) -> str:
     kind = QUANTITIES[name].kind
     delta = to_display(new, kind, units) - to_display(old, kind, units)
     sign = "+" if delta > 0 else ""
-    amount = f"{sign}{format_number(delta)} {display_unit(kind, units)}".rstrip()
+    amount = sign + with_unit(delta, display_unit(kind, units))
     return f"  ({amount})"
 
 
