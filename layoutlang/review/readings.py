@@ -144,13 +144,13 @@ def _words(key: str) -> str:
     return str(key).replace("_", " ")
 
 
-def _unit_of(key: str, units: str, sibling: dict | None) -> str:
-    if sibling is not None and isinstance(sibling.get("unit"), str):
-        return sibling["unit"]
+def _key_words(key: str) -> tuple[str, str]:
+    """A report key as words, and the unit its suffix names: 'coupling_percent' → ('coupling',
+    '%')."""
     for suffix, unit in _SUFFIX_UNITS.items():
-        if str(key).endswith(suffix):
-            return unit
-    return ""
+        if str(key).endswith(suffix) and len(str(key)) > len(suffix):
+            return _words(str(key)[: -len(suffix)]), unit
+    return _words(key), ""
 
 
 def _row_label(item: Any, index: int) -> str:
@@ -163,25 +163,28 @@ def _row_label(item: Any, index: int) -> str:
     return f"#{index + 1}"
 
 
-def _walk(group: str, path: list[str], node: Any, units: str, parent: dict | None
-          ) -> Iterable[Reading]:
+def _walk(group: str, path: list[str], node: Any, unit: str) -> Iterable[Reading]:
     label = " ".join(path)
     if isinstance(node, dict):
         if "value" in node and set(node) <= {"value", "unit", "why"}:  # one quantity
             value = node.get("value")
-            yield _reading(group, label, value if value is not None else node.get("why"),
-                           _unit_of(path[-1] if path else "", units, node))
+            shown = node.get("unit") if isinstance(node.get("unit"), str) else unit
+            yield _reading(group, label, value if value is not None else node.get("why"), shown)
             return
         for key, value in node.items():
-            if key in _ROW_KEYS and parent is None and len(path) > 1:  # a row's coordinates
-                continue
-            yield from _walk(group, path + [_words(key)], value, units, node)
+            words, named = _key_words(key)
+            yield from _walk(group, path + [words], value, named)
     elif isinstance(node, list):
         for i, item in enumerate(node):
+            if isinstance(item, dict):
+                row = _row_label(item, i)
+                item = {k: v for k, v in item.items() if k not in _ROW_KEYS}
+            else:
+                row = f"#{i + 1}"
             if isinstance(item, (dict, list, int, float)) and not isinstance(item, bool):
-                yield from _walk(group, path + [_row_label(item, i)], item, units, None)
+                yield from _walk(group, path + [row], item, unit)
     elif isinstance(node, (int, float)) and not isinstance(node, bool):
-        yield _reading(group, label, node, _unit_of(path[-1] if path else "", units, parent))
+        yield _reading(group, label, node, unit)
 
 
 def other_section_readings(program: Program, results: FirstOrder, checked) -> Iterable[Reading]:
@@ -192,8 +195,7 @@ def other_section_readings(program: Program, results: FirstOrder, checked) -> It
     document = program_json(program, results, list(checked))
     for section, content in document.items():
         if section not in _COVERED:
-            yield from _walk(_words(section), [_words(section)], content,
-                             program.system.units, None)
+            yield from _walk(_words(section), [_words(section)], content, "")
 
 
 def expected_readings(program: Program, results: FirstOrder, checked) -> Iterable[Reading]:
