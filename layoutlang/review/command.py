@@ -10,9 +10,13 @@ import argparse
 import sys
 from pathlib import Path
 
+from typing import TYPE_CHECKING
+
 from ..errors import LayoutError, LayoutFileError
-from .engine import Review, review
-from .revisions import Side, git_text, read_side
+
+if TYPE_CHECKING:  # the engine is imported when a comparison runs, not to build the parser
+    from .engine import Review
+    from .revisions import Side
 
 __all__ = ["add_command", "run", "against_revision", "EXIT_OK", "EXIT_WORSE", "EXIT_ERROR"]
 
@@ -71,6 +75,9 @@ def render(found: Review, before: str, after: str, shape: str) -> str:
 
 def run(args: argparse.Namespace) -> int:
     """Carry out `layoutlang compare` (a LayoutError reaches `cli.main`, which prints it)."""
+    from .engine import review
+    from .revisions import read_side
+
     shape = "json" if args.json else "markdown" if args.markdown else "text"
     try:
         before = _snapshot(read_side(args.before), "before")
@@ -105,7 +112,9 @@ def against_revision(path: str, revision: str, after=None) -> tuple[Review | Non
     `after` is the file's own snapshot when the caller has it. A file that the revision does
     not have, or whose old version has an error, gets a summary saying so (and no review).
     """
+    from .engine import review
     from .render import summary
+    from .revisions import Side, git_text, read_side
 
     file = Path(path)
     folder = file.parent if str(file.parent) else Path(".")
