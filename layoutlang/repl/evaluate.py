@@ -1,7 +1,7 @@
 """Evaluate the session's statements (the shared `review.snapshot` does the work).
 
-The statements are written back as canonical text and parsed again, so every error points at a
-line of the script the session would save.
+The statements are read back from the text `save` would write, so every error points at a line
+of the file the session saves.
 """
 
 from __future__ import annotations
@@ -20,17 +20,17 @@ SESSION_FILE = "<session>"
 
 
 def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
-             file: str = SESSION_FILE, header: str = "") -> Snapshot:
+             file: str = SESSION_FILE, text: str | None = None) -> Snapshot:
     """Interpret the statements and evaluate the layout.
 
-    The statements are read back as `save` writes them (header comments, then one statement
-    per line), so a line number in a message is the line of the saved file.
+    The statements are read back from the text `save` would write (the file's own text with
+    the session's edits made in it), so a line number in a message is a line of that file.
 
     Args:
         statements: the layout statements (no session commands).
         base: the folder `use "file"` is resolved against.
         file: the name messages mention (the session's file, once it has one).
-        header: the comment lines kept above the statements.
+        text: the script text that says `statements` (default: their canonical text).
 
     Returns:
         The snapshot (with results, or the reason the layout is not complete yet).
@@ -38,8 +38,7 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
     Raises:
         LayoutError: a statement is wrong (the caller keeps its earlier state).
     """
-    # `save` aligns this text with the formatter, which moves columns but never lines
-    snapshot = snapshot_of(parse(header + unparse(statements), file), base)
+    snapshot = snapshot_of(parse(unparse(statements) if text is None else text, file), base)
     # keep the session's own statements (the parsed copies are equal, positions aside)
     return Snapshot(tuple(statements), snapshot.program, snapshot.results, snapshot.checked,
                     snapshot.incomplete)

@@ -30,10 +30,18 @@ class Snapshot:
     results: FirstOrder | None = None
     checked: tuple[CheckResult, ...] = ()
     incomplete: str | None = None
+    error: str | None = None  # the layout has a mistake (e.g. a script opened with one)
 
     @property
     def complete(self) -> bool:
         return self.program is not None
+
+    @property
+    def why_not(self) -> str:
+        """Why there are no results, in words."""
+        if self.error is not None:
+            return "the layout has an error to fix first:\n" + self.error
+        return f"the layout is not complete yet: {self.incomplete}"
 
     @cached_property
     def readings(self):
