@@ -64,7 +64,8 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
         kind = expectation.kind
         reading = read_quantity(program, results, expectation.quantity, field=expectation.field,
                                 wavelength=expectation.wavelength, scale=expectation.scale,
-                                request=getattr(expectation, "request", None), kind=kind)
+                                request=getattr(expectation, "request", None), kind=kind,
+                                label=getattr(expectation, "label", ""))
         expected = to_display(expectation.expected, kind, units)
         tolerance = expectation.tolerance
         if tolerance is not None and not expectation.relative:
@@ -87,7 +88,8 @@ class QuantityReading:
 
 def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
                   field: float | None = None, wavelength: float | None = None, scale: str = "",
-                  request: Any = None, kind: str | None = None) -> QuantityReading:
+                  request: Any = None, kind: str | None = None, label: str = ""
+                  ) -> QuantityReading:
     """The value of a quantity with its qualifiers, as `expect` checks it and `compare` shows it.
 
     Args:
@@ -99,10 +101,12 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
         scale: 'depth of focus' when the value is wanted in depths of focus.
         request: colour quantities and `at wavelength`: an engines.chromatic.Request.
         kind: the quantity's kind when it is not in the table (e.g. a sensitivity).
+        label: ray quantities: the label as the script wrote it (default: made from the
+            field and wavelength).
     """
     units = program.system.units
     kind = kind or QUANTITIES[quantity].kind
-    label = quantity
+    written, label = label, quantity
     if request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
         from .engines.chromatic import evaluate
 
@@ -113,11 +117,13 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
 
         rays = ray_quantities(program.system, program.rays, results)
         value = rays.value(quantity, field, scale, wavelength)
-        if field is not None:
-            label = f"{label} at field {field:g}"
-        if wavelength is not None:
-            nm = to_nanometres(wavelength, units)
-            label = f"{label} at {nm:.6g} nm"
+        if written:
+            label = written
+        else:
+            if field is not None:
+                label = f"{label} at field {field:g}"
+            if wavelength is not None:
+                label = f"{label} at wavelength {to_nanometres(wavelength, units):.6g} nm"
         if scale:
             label = f"size of the {label} in depths of focus"
     elif program.symbolic is not None and quantity in program.symbolic.expected_sensitivities:

@@ -85,6 +85,9 @@ def requested_readings(program: Program, results: FirstOrder, checked) -> Iterab
         for name in names:
             yield _quantity("requested", program, results, name,
                             field=_field_of(name) if name in RAY_QUANTITIES else None)
+    for request in getattr(program, "ray_requests", ()):  # `report Q at field F …`
+        yield _quantity("requested", program, results, request.name, field=request.field,
+                        wavelength=request.wavelength, label=request.label)
 
 
 def colour_readings(program: Program, results: FirstOrder, checked) -> Iterable[Reading]:
@@ -132,7 +135,8 @@ def ray_readings(program: Program, results: FirstOrder, checked) -> Iterable[Rea
 #: Sections of the machine-readable report that the readers above cover (or that hold no
 #: quantities); every other section is read generically.
 _COVERED = frozenset({"file", "title", "units", "sign_convention", "cautions", "boundaries",
-                      "first_order", "notes", "expectations", "colour", "rays"})
+                      "first_order", "notes", "expectations", "colour", "rays",
+                      "requested_rays"})
 
 #: Keys whose numbers say which row a list item is (not quantities themselves).
 _ROW_KEYS = ("name", "field", "wavelength_nm", "wavelength", "pupil", "frequency", "sample")
