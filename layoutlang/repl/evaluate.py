@@ -20,7 +20,7 @@ SESSION_FILE = "<session>"
 
 
 def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
-             file: str = SESSION_FILE, text: str | None = None) -> Snapshot:
+             file: str = SESSION_FILE, script: t.Script | None = None) -> Snapshot:
     """Interpret the statements and evaluate the layout.
 
     The statements are read back from the text `save` would write (the file's own text with
@@ -30,7 +30,8 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
         statements: the layout statements (no session commands).
         base: the folder `use "file"` is resolved against.
         file: the name messages mention (the session's file, once it has one).
-        text: the script text that says `statements` (default: their canonical text).
+        script: the parsed script text that says `statements` (default: their canonical
+            text, parsed here).
 
     Returns:
         The snapshot (with results, or the reason the layout is not complete yet).
@@ -38,7 +39,9 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
     Raises:
         LayoutError: a statement is wrong (the caller keeps its earlier state).
     """
-    snapshot = snapshot_of(parse(unparse(statements) if text is None else text, file), base)
+    if script is None:
+        script = parse(unparse(statements), file)
+    snapshot = snapshot_of(script, base)
     # keep the session's own statements (the parsed copies are equal, positions aside)
     return Snapshot(tuple(statements), snapshot.program, snapshot.results, snapshot.checked,
                     snapshot.incomplete)
