@@ -301,3 +301,13 @@ def test_a_report_section_added_later_is_compared_with_no_change_in_review(repo,
     found = {c.label: c for c in review(before, after).quantities}
     assert found["beam waist"].unit == "mm" and found["beam waist"].difference > 0
     assert found["beam rows field 0.5 coupling"].unit == "%"
+
+
+def test_what_the_script_sets_is_said_once_as_a_statement_not_again_as_a_quantity(repo, capsys
+                                                                                ) -> None:
+    edit(repo, RELAY.replace("object 250 before", "object 300 before"))
+    _, data = compare_json(capsys)
+    assert [(c["change"], c["what"]) for c in data["statements"]] == [("changed", "object")]
+    parts = {q["part"] for q in data["quantities"]}
+    assert parts <= {"first order", "expected"} and "image distance" in {
+        q["quantity"] for q in data["quantities"]}
