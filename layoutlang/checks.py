@@ -6,7 +6,7 @@ from dataclasses import dataclass
 
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
-from .quantities import PERCENT, POWER, RAY_QUANTITIES
+from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, PERCENT, POWER, RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
 
@@ -26,7 +26,8 @@ class CheckResult:
 def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
-    return {"length": units, "power": "diopters", PERCENT: "%"}.get(kind, "")
+    return {"length": units, "power": "diopters", PERCENT: "%", ANGLE: "mrad",
+            DECIBEL: "dB"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
@@ -35,7 +36,14 @@ def to_display(value, kind: str, units: str):
         return value * 1000.0 / LENGTH_UNITS[units]
     if kind == PERCENT and isinstance(value, (int, float)):
         return value * 100.0
+    if kind == ANGLE and isinstance(value, (int, float)):
+        return value * 1000.0
     return value
+
+
+def beam_label(name: str, place) -> str:
+    """A beam quantity's name with its place, as messages show it."""
+    return name if place is None or not place.label else f"{name} at {place.label}"
 
 
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
@@ -60,7 +68,12 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
         kind = expectation.kind
         label = expectation.quantity
         request = getattr(expectation, "request", None)
-        if request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
+        if expectation.quantity in BEAM_QUANTITIES:  # Gaussian beams (engines/beams.py)
+            from .engines.beams import beam_value
+
+            value = beam_value(program.system, expectation.quantity, request)
+            label = beam_label(expectation.quantity, request)
+        elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
             from .engines.chromatic import evaluate
 
             value = evaluate(request, program.system, results)

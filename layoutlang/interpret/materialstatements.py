@@ -122,6 +122,8 @@ class MaterialStatements:
     def statement_QualifiedReport(self, node: t.QualifiedReport) -> None:
         """report QUANTITY of MEDIUM | at wavelength W | between W and W | across W, W and W"""
         self.quantity(node.quantity)  # unknown names fail here, where they are written
+        if self.report_beam(node):  # `report beam radius at front` (beamstatements.py)
+            return
         self._materials()["reports"].append((node, (self.file, self.lines)))
 
     def report_chromatic(self, node: t.Report) -> bool:

@@ -24,7 +24,7 @@ __all__ = ["LayoutCompleter", "next_terminals", "candidates"]
 
 _PARTIAL = re.compile(r"[A-Za-z_][A-Za-z0-9_-]*$")
 #: The words the UNIT terminal matches (grammar/layoutlang.lark), for completion after a number.
-_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "diopters")
+_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "mrad", "diopters", "dB")
 
 
 @cache

@@ -202,5 +202,9 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
         from .chromatic import colour_lines
 
         lines += colour_lines(program, results)
+    if program.system.beam is not None:  # the Gaussian beam (reports/beams.py)
+        from .beams import beam_lines
+
+        lines += beam_lines(program)
     lines += ["", "expectations"] + expectation_lines(checked)
     return "\n".join(lines) + "\n"
