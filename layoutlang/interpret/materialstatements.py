@@ -14,7 +14,7 @@ from typing import Any
 from ..errors import LayoutNameError, LayoutUnitError, LayoutValueError
 from ..measure import Measure, from_nanometres, to_nanometres
 from ..materials.lines import SPECTRAL_LINES, line_letter
-from ..quantities import REPORT_ORDER, lookup
+from ..quantities import RAY_QUANTITIES, REPORT_ORDER, lookup
 from ..syntax import tree as t
 from ..system import System, Wavelength
 
@@ -122,6 +122,8 @@ class MaterialStatements:
     def statement_QualifiedReport(self, node: t.QualifiedReport) -> None:
         """report QUANTITY of MEDIUM | at wavelength W | between W and W | across W, W and W"""
         self.quantity(node.quantity)  # unknown names fail here, where they are written
+        if self.report_ray_qualified(node):  # a spot radius at a wavelength (raystatements.py)
+            return
         if self.report_beam(node):  # `report beam radius at front` (beamstatements.py)
             return
         self._materials()["reports"].append((node, (self.file, self.lines)))
@@ -313,6 +315,8 @@ class MaterialStatements:
         qualifiers = getattr(node, "qualifiers", ())
         info = lookup(node.quantity.text)
         if info is None or not qualifiers and info.name not in CHROMATIC_QUANTITIES:
+            return None
+        if info.name in RAY_QUANTITIES:  # `at wavelength W` of a spot: the ray path takes it
             return None
         return self.colour_request(info.name, qualifiers, node, self._materials()["system"])
 

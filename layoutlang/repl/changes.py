@@ -1,20 +1,21 @@
-"""Before → after: what an edit changed in the first-order results and the expectations.
-
-Only what a reader would see change is listed: a quantity whose printed value (six significant
-digits, with its unit) differs, and an expectation whose state (holds / FAILS) differs or that
-appeared or went away.
-"""
+"""Before → after for one edit of the session: the shared review engine (`layoutlang.review`)
+compares the two snapshots, its session renderer writes the lines."""
 
 from __future__ import annotations
 
-from collections import Counter
-
-from ..checks import display_unit, to_display
-from ..engines.firstorder import Unavailable
-from ..quantities import QUANTITIES, REPORT_ORDER
-from ..testing import format_number
+from ..review.engine import review
+from ..review.render import session_lines
 from .evaluate import Snapshot
 
+<<<<<<< HEAD
+__all__ = ["describe_changes"]
+
+
+def describe_changes(before: Snapshot, after: Snapshot) -> list[str]:
+    """Lines saying what changed from `before` to `after` (the session has said the edit
+    itself, so statements are not listed again)."""
+    return session_lines(review(before, after, statements=False), after.readings)
+=======
 __all__ = ["describe_changes", "show_value"]
 
 
@@ -42,8 +43,8 @@ def _quantity_lines(before: Snapshot, after: Snapshot) -> list[str]:
     units = after.program.system.units
     rows = []
     for name in REPORT_ORDER:
-        old = before.results.values.get(name)
-        new = after.results.values.get(name)
+        old = before.results.get(name)
+        new = after.results.get(name)
         old_text = show_value(name, old, before.program.system.units)
         new_text = show_value(name, new, units)
         if old_text != new_text:
@@ -94,8 +95,9 @@ def describe_changes(before: Snapshot, after: Snapshot) -> list[str]:
     if not before.complete:
         lines = ["  the layout is complete; first-order results:"]
         for name in REPORT_ORDER:
-            value = after.results.values.get(name)
+            value = after.results.get(name)
             if not isinstance(value, Unavailable):
                 lines.append(f"    {name}: {show_value(name, value, after.program.system.units)}")
         return lines + _expectation_lines(before, after)
     return _quantity_lines(before, after) + _expectation_lines(before, after)
+>>>>>>> main

@@ -194,6 +194,10 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
                 from .rays import requested_ray_lines
 
                 lines += requested_ray_lines(program, results, names)
+    if program.ray_requests:  # `report Q at field F` (reports/rays.py)
+        from .rays import ray_request_lines
+
+        lines += ray_request_lines(program, results)
     if program.ray_reports:
         from .rays import ray_sections
 

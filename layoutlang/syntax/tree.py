@@ -16,7 +16,7 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
-    "Sample", "FocusTolerance", "ReportRays", "ExpectRays",
+    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
 ]
@@ -151,12 +151,14 @@ class StartMedium(Statement):
 @node
 class ObjectAtInfinity(Statement):
     field_angle: Expr | None = None
+    height: Expr | None = None  # not meaningful at infinity: the interpreter says so
 
 
 @node
 class ObjectBefore(Statement):
     distance: Expr
     height: Expr | None = None
+    field_angle: Expr | None = None  # not meaningful for a near object: the interpreter says so
 
 
 @node
@@ -360,6 +362,15 @@ class ReportRays(Statement):
     """`report exact rays` or `report seidel sums`."""
 
     what: str  # 'exact rays' | 'seidel sums'
+
+
+@node
+class ReportAtField(Statement):
+    """`report Q at field F [at wavelength W]`: one ray quantity where `expect` takes it."""
+
+    quantity: Quantity
+    field: Expr
+    wavelength: Node | None = None
 
 
 @node
