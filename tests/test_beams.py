@@ -216,3 +216,33 @@ def test_a_beam_with_propagation_ratio_above_one_has_no_single_mode_coupling() -
             + "expect coupling efficiency > 10 %\n")
     passed, message = outcomes(text)[0]
     assert not passed and "not one Gaussian mode" in message
+
+
+def test_derived_beam_quantities_equal_the_numeric_engine_through_glass() -> None:
+    from layoutlang.symbolic.derive import derive
+
+    program = load("symbols R d positive\nnominal R = 40, d = 6\nunits mm\n"
+                   "beam waist radius 0.8, waist 60 before, wavelength 633 nm\n"
+                   "medium glass index 1.515\nstart in air\nsurface front radius R into glass\n"
+                   "gap d\nsurface back radius -R into air\n"
+                   "derive waist position, waist radius, rayleigh range\n")
+    numeric = BeamPropagation(program.system).output()
+    for name, expected in (("waist position", numeric.waist_position),
+                           ("waist radius", numeric.waist_radius),
+                           ("rayleigh range", numeric.rayleigh_range)):
+        derived = derive(program.symbolic, name)
+        assert derived.expr is not None and derived.nominal_value == pytest.approx(expected,
+                                                                                   rel=1e-10)
+
+
+@pytest.mark.parametrize("line, words", [
+    ("derive waist radius\n", "needs a beam"),
+    ("sensitivity of waist radius to R\n", "has no closed form here"),
+])
+def test_beam_derivations_refuse_what_they_cannot_do(line: str, words: str) -> None:
+    text = "symbols R positive\nnominal R = 40\nstart in air\nsurface radius R into air\n"
+    if "sensitivity" in line:
+        text = "units mm\nbeam waist radius 1, wavelength 1 um\n" + text
+    with pytest.raises(LayoutError) as caught:
+        load(text + line)
+    assert words in str(caught.value)

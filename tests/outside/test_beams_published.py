@@ -165,3 +165,27 @@ def test_a_clear_aperture_of_one_beam_diameter_passes_86_percent() -> None:
                     "surface window flat, clear diameter 2\n"
                     "expect power passed at window = 86.4665 % ± 0.0001 %\n")
     assert all(r.passed for r in check_program(program))
+
+
+def test_derived_waist_position_and_radius_are_self_1983_in_closed_form() -> None:
+    """`derive waist position` / `derive waist radius` on a symbolic thin lens equal Self's
+    eqs. (9) and (10b) as rational functions of f, s and w0 (the wavelength a number)."""
+    sp = pytest.importorskip("sympy")
+    from layoutlang.symbolic.derive import derive
+
+    program = loads("symbols f s w positive\nnominal f = 100, s = 150, w = 0.3\nunits mm\n"
+                    "beam waist radius w, waist s before, wavelength 1064 nm\nstart in air\n"
+                    "lens focusing focal length f\nderive waist position, waist radius\n")
+    part = program.symbolic
+    f, s, w = part.symbols
+    z_r = sp.pi * w ** 2 / sp.Rational(1064, 10 ** 6)
+    x = s / f - 1
+    image = f * (1 + x / (x ** 2 + (z_r / f) ** 2))
+    radius_squared = w ** 2 / (x ** 2 + (z_r / f) ** 2)
+    position = derive(part, "waist position")
+    assert sp.cancel(sp.together(position.expr - image)) == 0
+    radius = derive(part, "waist radius")
+    assert sp.cancel(sp.together(radius.expr ** 2 - radius_squared)) == 0
+    numeric = BeamPropagation(program.system).output()
+    assert position.nominal_value == pytest.approx(numeric.waist_position, rel=1e-12)
+    assert radius.nominal_value == pytest.approx(numeric.waist_radius, rel=1e-12)
