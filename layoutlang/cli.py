@@ -165,11 +165,15 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
                     review_json(found, f"{against}:{path}", path) if found else {})}
             continue
         if failed:
-            print(f"{path}: {len(failed)} of {len(checked)} expectations "
-                  f"{paint('FAIL', 'bad', colour)}")
+            print(f"{path}: {len(failed)} of {len(checked)} expectation"
+                  f"{'s' if len(checked) != 1 else ''} {paint('FAIL', 'bad', colour)}")
             for result in failed:
                 e = result.expectation
                 print(f"  {e.span.file}:{e.span.line}:{e.span.column}: {result.outcome.message}")
+        elif not checked:
+            print(f"{path}: no expectations, nothing checked")
+        elif len(checked) == 1:
+            print(f"{path}: 1 expectation {paint('holds', 'good', colour)}")
         else:
             print(f"{path}: all {len(checked)} expectations {paint('hold', 'good', colour)}")
         if against:

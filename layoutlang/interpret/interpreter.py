@@ -144,6 +144,14 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
 
     def length(self, node: t.Expr, what: str) -> Any:
         measure = self.value(node)
+        if measure.bare and measure.free >= 2:
+            raise LayoutUnitError(
+                f"{what} must be a length, but this multiplies {measure.free} constants "
+                "written without a unit: if each is a length, the product is not one",
+                self.span(node), expected="a length",
+                hint="give the constants their units ('let D = 25 mm'), so the dimensions "
+                     "are checked; a plain factor may stay without one ('let ratio = 0.5' "
+                     "times a length with a unit)")
         if measure.bare or measure.dimension == (1, 0):
             return measure.value
         raise LayoutUnitError(
@@ -272,7 +280,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.name.text in self.names:
             raise LayoutNameError(f"{node.name.text!r} is already defined", self.span(node.name))
         self._fix_units(node)
-        self.names[node.name.text] = self.value(node.value)
+        value = self.value(node.value)
+        if value.bare and value.free == 0:  # a constant without a unit: it may be a length
+            from dataclasses import replace
+
+            value = replace(value, free=1)
+        self.names[node.name.text] = value
 
     def statement_MediumIndex(self, node: t.MediumIndex) -> None:
         """medium NAME index N"""
@@ -621,7 +634,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         info = self.quantity(node.quantity)
         convert = self.converter(info.kind, "the expected value")
         expected = convert(node.value)
-        tolerance, relative = self.tolerance(node, convert)
+        tolerance, relative = self.tolerance(node, self.converter(info.kind, "the tolerance"))
         span = self.span(node)
         return Expectation(info.name, info.kind, node.op, expected, tolerance, relative, span,
                            span.line_text.strip(), request=request)

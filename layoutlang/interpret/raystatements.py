@@ -215,14 +215,16 @@ class RayStatements:
         if scale:
             kind = "number"
             convert = lambda e: self.number(e, "a fraction of the depth of focus")  # noqa: E731
+            limit = convert
         elif info.kind == PERCENT:
             kind = PERCENT
-            convert = self._percent
+            convert = limit = self._percent
         else:
             kind = info.kind
             convert = lambda e: self.length(e, "the expected value")  # noqa: E731
+            limit = lambda e: self.length(e, "the tolerance")  # noqa: E731
         expected = convert(node.value)
-        tolerance, relative = self.tolerance(node, convert, percent_allowed=kind != PERCENT)
+        tolerance, relative = self.tolerance(node, limit, percent_allowed=kind != PERCENT)
         span = self.span(node)
         return Expectation(info.name, kind, node.op, expected, tolerance, relative, span,
                            span.line_text.strip(), field=fraction, scale=scale,

@@ -19,7 +19,7 @@ from ..checks import CheckResult, read_quantity
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import FIELD_DEFAULTS, QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
-from ..testing import format_number
+from ..testing import format_number, with_unit
 
 __all__ = ["Reading", "readings", "READERS", "SEIDEL_REPORT", "EXACT_RAY_REPORT"]
 
@@ -42,7 +42,7 @@ class Reading:
         """The value as reports print it (six significant digits, with its unit)."""
         if self.number is None:
             return str(self.value)
-        return f"{format_number(self.value)} {self.unit}".rstrip()
+        return with_unit(self.value, self.unit)
 
 
 def _reading(group: str, label: str, value: Any, unit: str) -> Reading:

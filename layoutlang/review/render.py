@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from ..testing import format_number
+from ..testing import format_number, with_unit
 from .engine import ExpectationChange, QuantityChange, Review
 
 __all__ = ["session_lines", "summary", "text", "markdown", "markdown_document", "as_json",
@@ -22,7 +22,7 @@ def difference_text(change: QuantityChange) -> str:
     if delta is None:
         return ""
     sign = "+" if delta > 0 else ""
-    return f"{sign}{format_number(delta)} {change.unit}".rstrip()
+    return sign + with_unit(delta, change.unit)
 
 
 def _aligned(rows: list[list[str]], indent: str) -> list[str]:

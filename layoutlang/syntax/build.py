@@ -335,7 +335,7 @@ class _Builder(Transformer):
 
     def medium_model_glass(self, meta, items):
         name, index, abbe, *rest = items
-        return self._medium_model(meta, name, "model glass", rest, values=(index, abbe))
+        return self._medium_model(meta, name, "nd and abbe number", rest, values=(index, abbe))
 
     def medium_glass_code(self, meta, items):
         name, code, *rest = items

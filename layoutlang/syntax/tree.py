@@ -392,7 +392,7 @@ class ExpectRays(Statement):
 
 @node
 class MediumModel(Statement):
-    """A medium with a dispersion model; kind is 'model glass' (values: index, Abbe number),
+    """A medium with a dispersion model; kind is 'nd and abbe number' (values: index, Abbe number),
     'glass code' (code: the digits as written), 'sellmeier' (pairs of B and λᵢ, or of B and C
     when squared), 'cauchy' (values: the coefficients) or 'table' (pairs of λ and n)."""
 

@@ -195,7 +195,7 @@ def _pairs(pairs) -> str:
 
 def _MediumModel(node: t.MediumModel) -> str:
     head = f"medium {node.name.text}"
-    if node.kind == "model glass":
+    if node.kind == "nd and abbe number":
         index, abbe = node.values
         text = f"{head} index {expression_text(index)}, abbe number {expression_text(abbe)}"
     elif node.kind == "glass code":
