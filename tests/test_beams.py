@@ -246,3 +246,27 @@ def test_beam_derivations_refuse_what_they_cannot_do(line: str, words: str) -> N
     with pytest.raises(LayoutError) as caught:
         load(text + line)
     assert words in str(caught.value)
+
+
+def test_the_drawing_carries_the_envelope_with_its_waists() -> None:
+    from layoutlang.reports.cross_section import cross_section
+    from layoutlang.reports.drawing import drawing_bytes
+
+    system = load(HEAD + LAYOUT).system
+    section = cross_section(system)
+    assert section.beam is not None and not section.rays  # no stop: the beam, not rays
+    words = [w for _, _, w in section.beam.waists]
+    assert words == ["input waist 500 µm", "output waist 67.7 µm"]
+    z_min, z_max, _ = section.extent()
+    assert z_min <= -100 and z_max >= 100
+    first = drawing_bytes(system, "svg", ("laser",))
+    assert first == drawing_bytes(system, "svg", ("laser",)) and b"output waist" in first
+
+
+def test_a_waist_inside_a_gap_is_marked() -> None:
+    from layoutlang.reports.cross_section import cross_section
+
+    system = load(HEAD + "start in air\nlens one focal length 50\ngap 200\n"
+                         "lens two focal length 100\n").system
+    words = [w for _, _, w in cross_section(system).beam.waists]
+    assert any(w.startswith("waist ") for w in words)

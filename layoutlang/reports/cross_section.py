@@ -375,7 +375,7 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         tips = [abs(r.virtual_y[-1] if r.virtual_y else r.y[-1]) for r in rays]
         height = max(tips + [0.15 * max(p.semi_aperture for p in profiles)])
         image = (z_last + sense_k * after, 1.15 * height)
-    if exact and starts:  # (a beam drawn without a stop has no rays to trace)
+    if exact and (starts or system.beam is None):  # a beam without a stop: no rays
         traced = _exact_rays(system, results, z_first - before,
                              z_last + sense_k * (after if after >= 0 else lead))
         if isinstance(traced, str):
