@@ -270,3 +270,19 @@ def test_a_waist_inside_a_gap_is_marked() -> None:
                          "lens two focal length 100\n").system
     words = [w for _, _, w in cross_section(system).beam.waists]
     assert any(w.startswith("waist ") for w in words)
+
+
+@pytest.mark.parametrize("beam", ["beam waist radius 1e-300, wavelength 1 um",
+                                  "beam waist radius 1, waist 1e300 before, wavelength 1 um",
+                                  "beam waist radius 1, wavelength 1e-200 nm"])
+def test_extreme_beams_are_said_in_words_never_inf_or_nan(beam: str) -> None:
+    from layoutlang.reports.machine import dumps, program_json
+    from layoutlang.reports.text import full_report
+
+    program = load(f"units mm\n{beam}\n" + LAYOUT + FIBRE + "expect waist radius < 1\n")
+    results, checked = evaluate_program(program)
+    text = full_report(program, results, checked)
+    assert "not computed: out of range" in text
+    assert "nan" not in text and " inf" not in text
+    dumps(program_json(program, results, checked))  # allow_nan=False: raises on nan/inf
+    assert not checked[0].passed and "out of range" in checked[0].outcome.message

@@ -26,7 +26,7 @@ import numpy as np
 
 from ..system import System
 from . import paraxial
-from .firstorder import Unavailable, first_order
+from .firstorder import LARGEST, Unavailable, first_order
 from .paraxial import TRANSFER, Step, gaussian
 
 __all__ = ["BeamPropagation", "AtPlane", "Output", "Coupling", "Aperture", "EnvelopePoint",
@@ -157,6 +157,38 @@ class BeamPropagation:
         self.effective_wavelength = beam.propagation_ratio * beam.wavelength
         self.confocal = math.pi * self.waist_squared / self.effective_wavelength
         self._output: Output | None = None
+
+    def problem(self) -> Unavailable | None:
+        """Why this (numeric, scalar) beam cannot be computed, or None: extreme inputs (a
+        waist of 1e-300, a distance of 1e300) overflow double precision, and a report must
+        then say so in words rather than print inf or nan. Arrays are not checked here."""
+        if "_problem" in self.__dict__:
+            return self._problem
+        found = None
+        if _scalar(self.confocal):
+            values: list[Any] = []
+            try:
+                with np.errstate(all="ignore"):
+                    out = self.output()
+                    values += [out.waist_position, out.waist_radius, out.rayleigh_range,
+                               out.divergence]
+                    for i in range(len(self.system.boundaries)):
+                        at = self.at_boundary(i)
+                        values.append(at.radius)
+                        if not isinstance(at.wavefront_radius, Unavailable):
+                            values.append(at.wavefront_radius)
+                    if self.system.fibre is not None:
+                        coupling = self.coupling()
+                        if not isinstance(coupling, Unavailable):
+                            values += [coupling.efficiency, coupling.beam_radius]
+                bad = any(not math.isfinite(float(v)) or abs(float(v)) > LARGEST for v in values)
+                bad = bad or not (out.waist_radius > 0 and out.rayleigh_range > 0)
+            except (ArithmeticError, ValueError):
+                bad = True
+            if bad:
+                found = Unavailable("out of range: the beam's numbers overflow double precision")
+        self._problem = found
+        return found
 
     # --- matrices from the input waist ------------------------------------------------------
     def matrix_to_boundary(self, i: int) -> tuple:
@@ -340,6 +372,8 @@ def beam_value(system: System, name: str, place: Place | None = None) -> Any:
     if system.beam is None:
         return Unavailable("none: the layout has no beam")
     beam = propagation(system)
+    if beam.problem() is not None:
+        return beam.problem()
     if name in ("waist position", "waist radius", "rayleigh range", "divergence"):
         return getattr(beam.output(), name.replace(" ", "_"))
     if name in ("beam radius", "wavefront radius"):

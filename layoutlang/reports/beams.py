@@ -90,6 +90,9 @@ def beam_lines(program: Program) -> list[str]:
     system = program.system
     units = system.units
     beam = propagation(system)
+    if beam.problem() is not None:
+        return ["", "laser beam (Gaussian)", f"  input: {_input_words(program)}",
+                f"  not computed: {beam.problem()}"]
     out = beam.output()
     lines = ["", "laser beam (Gaussian; ABCD law of Kogelnik & Li 1966"
              + (", embedded Gaussian for M² > 1, Siegman 1990 / ISO 11146)"
@@ -151,8 +154,11 @@ def beam_warnings(program: Program) -> list[str]:
         return []
     from ..engines.beams import propagation
 
+    beam = propagation(program.system)
+    if beam.problem() is not None:
+        return []
     found = []
-    for aperture in propagation(program.system).apertures():
+    for aperture in beam.apertures():
         lost = 1 - aperture.passed
         if settings.clipping_limit is not None and lost > settings.clipping_limit:
             found.append(f"warning: {aperture.boundary} clips {_pct(lost)} of the beam's "
@@ -180,8 +186,10 @@ def beam_json(program: Program) -> dict:
     system = program.system
     units = system.units
     beam = propagation(system)
-    out = beam.output()
     spec = system.beam
+    if beam.problem() is not None:
+        return {"why": beam.problem().reason}
+    out = beam.output()
     found: dict = {
         "input": {"waist_radius": _json(spec.waist_radius),
                   "waist_before_first_boundary": _json(spec.waist_distance),

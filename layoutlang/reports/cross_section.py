@@ -409,12 +409,15 @@ def _micro(value: float, units: str) -> str:
 
 
 def beam_envelope(system: System, length_scale: float, lead: float,
-                  notes: list[str]) -> BeamEnvelope:
+                  notes: list[str]) -> BeamEnvelope | None:
     """The beam's envelope from its input waist (when near enough upstream) to its output
     waist, the fibre face or the image plane (when near enough downstream), waists marked."""
     from ..engines.beams import BeamPropagation
 
     beam = BeamPropagation(system)
+    if beam.problem() is not None:
+        notes.append(f"the beam is not drawn: {beam.problem()}")
+        return None
     vertices = _vertices(system)
     senses = system.directions()
     reach = 3 * max(length_scale, lead)
