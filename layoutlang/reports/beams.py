@@ -15,9 +15,8 @@ from ..interpret.interpreter import Program
 from ..measure import to_nanometres
 from ..quantities import QUANTITIES
 from ..testing import format_number
-from .text import aligned
 
-__all__ = ["beam_lines", "beam_json", "beam_warnings"]
+__all__ = ["beam_blocks", "beam_lines", "beam_json", "beam_warnings"]
 
 
 def _len(value: Any, units: str) -> str:
@@ -83,66 +82,78 @@ def _clipping_rows(program: Program, beam) -> list[list[str]]:
     return rows
 
 
-def beam_lines(program: Program) -> list[str]:
-    """The beam section of the text report."""
+def beam_blocks(program: Program) -> list:
+    """The beam section as report blocks (the text report and the documents alike)."""
     from ..engines.beams import beam_value, propagation
+    from .blocks import Heading, Line, Table
 
     system = program.system
     units = system.units
     beam = propagation(system)
     if beam.problem() is not None:
-        return ["", "laser beam (Gaussian)", f"  input: {_input_words(program)}",
-                f"  not computed: {beam.problem()}"]
+        return [Heading("laser beam (Gaussian)"), Line(f"input: {_input_words(program)}"),
+                Line(f"not computed: {beam.problem()}")]
     out = beam.output()
-    lines = ["", "laser beam (Gaussian; ABCD law of Kogelnik & Li 1966"
-             + (", embedded Gaussian for M² > 1, Siegman 1990 / ISO 11146)"
-                if system.beam.propagation_ratio != 1 else ")"),
-             f"  input: {_input_words(program)}",
-             f"  output waist: {_where(out.waist_position, units)}, radius "
-             f"{_len(out.waist_radius, units)}",
-             f"  rayleigh range {_len(out.rayleigh_range, units)}; far-field divergence "
-             f"{format_number(out.divergence * 1000)} mrad (half-angle, 1/e²)",
-             "  the beam at each boundary:"]
-    lines += aligned(_clipping_rows(program, beam), "    ")
+    source = ("; embedded Gaussian for M² > 1, Siegman 1990 / ISO 11146"
+              if system.beam.propagation_ratio != 1 else "")
+    blocks: list = [
+        Heading(f"laser beam (Gaussian; ABCD law of Kogelnik & Li 1966{source})"),
+        Line(f"input: {_input_words(program)}"),
+        Line(f"output waist: {_where(out.waist_position, units)}, radius "
+             f"{_len(out.waist_radius, units)}"),
+        Line(f"rayleigh range {_len(out.rayleigh_range, units)}; far-field divergence "
+             f"{format_number(out.divergence * 1000)} mrad (half-angle, 1/e²)"),
+        Line("the beam at each boundary:"),
+        Table(_clipping_rows(program, beam), indent="    "),
+    ]
     if beam.apertures():
-        lines.append(f"  power passed by every clear aperture: {_pct(beam.power_passed())} "
-                     "(each aperture on its own; diffraction at the edges is not modelled)")
+        blocks.append(Line(f"power passed by every clear aperture: {_pct(beam.power_passed())} "
+                           "(each aperture on its own; diffraction at the edges is not "
+                           "modelled)"))
     if system.fibre is not None:
-        lines += _fibre_lines(program, beam)
+        blocks += [Line(text, indent) for indent, text in _fibre_lines(program, beam)]
     settings = program.beams
     if settings is not None and settings.reports:
         rows = [[beam_label(name, place), _value_text(name, beam_value(system, name, place),
                                                       units)]
                 for name, place in settings.reports]
-        lines += ["  requested:"] + aligned(rows, "    ")
-    lines += [f"  {warning}" for warning in beam_warnings(program)]
-    return lines
+        blocks += [Line("requested:"), Table(rows, header=False, indent="    ")]
+    blocks += [Line(warning) for warning in beam_warnings(program)]
+    return blocks
 
 
-def _fibre_lines(program: Program, beam) -> list[str]:
+def beam_lines(program: Program) -> list[str]:
+    """The beam section of the text report."""
+    from .blocks import to_text
+
+    return to_text(beam_blocks(program))
+
+
+def _fibre_lines(program: Program, beam) -> list[tuple[str, str]]:
+    """(indent, text) lines about the fibre and the coupling."""
     system = program.system
     units = system.units
     fibre = system.fibre
     coupling = beam.coupling()
     place = {"image": "at the image plane", "waist": "at the output waist",
              "after": "at a fixed distance"}[fibre.place]
-    lines = [f"  fibre: mode-field diameter {_len(fibre.mode_field_diameter, units)}, face "
-             f"{place}"
-             + ("" if isinstance(coupling, Unavailable) else
-                f", {_where(coupling.face_distance, units).replace(' (real)', '')}")]
+    lines = [("  ", f"fibre: mode-field diameter {_len(fibre.mode_field_diameter, units)}, face "
+                    f"{place}"
+              + ("" if isinstance(coupling, Unavailable) else
+                 f", {_where(coupling.face_distance, units).replace(' (real)', '')}"))]
     if fibre.offset or fibre.tilt:
-        lines.append(f"    lateral offset {_len(fibre.offset, units)}, tilt "
-                     f"{format_number(math.degrees(fibre.tilt))} deg (in one plane)")
+        lines.append(("    ", f"lateral offset {_len(fibre.offset, units)}, tilt "
+                               f"{format_number(math.degrees(fibre.tilt))} deg (in one plane)"))
     if isinstance(coupling, Unavailable):
-        return lines + [f"  coupling efficiency: {coupling}"]
-    lines.append(f"    beam radius at the face {_len(coupling.beam_radius, units)}, wavefront "
-                 f"radius {_len(coupling.wavefront_radius, units)}")
+        return lines + [("  ", f"coupling efficiency: {coupling}")]
+    lines.append(("    ", f"beam radius at the face {_len(coupling.beam_radius, units)}, "
+                           f"wavefront radius {_len(coupling.wavefront_radius, units)}"))
     if coupling.efficiency < 1e-300:
-        return lines + ["  coupling efficiency: practically none (below 1e-300)"]
-    lines.append(f"  coupling efficiency {_pct(coupling.efficiency)} "
-                 f"({format_number(-coupling.loss_db)} dB); size and curvature mismatch "
-                 f"alone {_pct(coupling.mismatch)} (Gaussian mode overlap, Joyce & DeLoach "
-                 "1984)")
+        return lines + [("  ", "coupling efficiency: practically none (below 1e-300)")]
+    lines.append(("  ", f"coupling efficiency {_pct(coupling.efficiency)} "
+                        f"({format_number(-coupling.loss_db)} dB); size and curvature mismatch "
+                        f"alone {_pct(coupling.mismatch)} (Gaussian mode overlap, Joyce & "
+                        "DeLoach 1984)"))
     return lines
 
 
