@@ -161,11 +161,17 @@ class BeamPropagation:
     def problem(self) -> Unavailable | None:
         """Why this (numeric, scalar) beam cannot be computed, or None: extreme inputs (a
         waist of 1e-300, a distance of 1e300) overflow double precision, and a report must
-        then say so in words rather than print inf or nan. Arrays are not checked here."""
+        then say so in words rather than print inf or nan. Array-valued layouts (samples)
+        are not checked here: one sample out of range must not hide the others."""
         if "_problem" in self.__dict__:
             return self._problem
         found = None
-        if _scalar(self.confocal):
+        scalar = _scalar(self.confocal) and _scalar(self.lead.value) and all(
+            _scalar(step.value) for step in self.steps) and (
+            self.system.fibre is None or all(_scalar(v) for v in (
+                self.system.fibre.mode_field_diameter, self.system.fibre.offset,
+                self.system.fibre.tilt, self.system.fibre.distance or 0.0)))
+        if scalar:
             values: list[Any] = []
             try:
                 with np.errstate(all="ignore"):
