@@ -9,6 +9,7 @@ from .interpret.interpreter import Expectation, Program
 from .quantities import PERCENT, POWER, RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
+from .guard import guarded
 
 __all__ = ["CheckResult", "check_program", "evaluate_program", "display_unit", "to_display"]
 
@@ -38,6 +39,7 @@ def to_display(value, kind: str, units: str):
     return value
 
 
+@guarded
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     """The first-order results of a program and the outcome of each expectation, as every
     front end reports them (a symbolic script at its nominal values, which must all be given)."""
@@ -49,6 +51,7 @@ def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     return results, check_program(program, results)
 
 
+@guarded
 def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
     """Every expectation of the program with its outcome, in script order."""
     if results is None:

@@ -7,17 +7,24 @@ for Python tests.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
+
+#: How a number that is not finite is printed (never 'inf' or 'nan').
+NOT_COMPUTED = "(cannot be computed)"
 
 __all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_number"]
 
 
 def format_number(value: float, digits: int = 6) -> str:
     """A number as reports print it: `digits` significant digits, no exponent for everyday
-    magnitudes, never 'inf' or 'nan' (callers pass only finite values)."""
+    magnitudes, never 'inf' or 'nan': a value that is not finite prints as the words
+    'cannot be computed' (the exit half of the numeric guard, `layoutlang.guard`)."""
     if value == 0:
         return "0"
+    if not math.isfinite(value):
+        return NOT_COMPUTED
     text = f"{value:.{digits}g}"
     if "e" in text:
         mantissa, exponent = text.split("e")
@@ -35,6 +42,8 @@ class Outcome:
 
 
 def _with_unit(value: float, unit: str) -> str:
+    if not math.isfinite(value):
+        return NOT_COMPUTED
     return f"{format_number(value)} {unit}".rstrip()
 
 
@@ -60,6 +69,11 @@ def compare(
     """
     if not isinstance(actual, (int, float)):
         return Outcome(False, actual, f"{quantity} is {actual}; expected {op} "
+                       f"{_with_unit(expected, unit)}")
+    if not math.isfinite(actual):
+        from .guard import NOT_FINITE_REASON
+
+        return Outcome(False, actual, f"{quantity} {NOT_FINITE_REASON}; expected {op} "
                        f"{_with_unit(expected, unit)}")
     if op == "=":
         allowed = abs(tolerance * expected) if relative else abs(tolerance or 0.0)

@@ -14,7 +14,9 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
+from ..guard import finite_or_unavailable
 from ..testing import format_number
+from ..guard import guarded
 
 __all__ = [
     "aligned",
@@ -45,6 +47,9 @@ def aligned(rows: list[list[str]], indent: str = "  ") -> list[str]:
 
 
 def _length(value, units: str) -> str:
+    value = finite_or_unavailable(value)
+    if isinstance(value, Unavailable):
+        return str(value)
     return f"{format_number(value)} {units}"
 
 
@@ -128,6 +133,7 @@ def image_plane_words(system: System) -> str:
 
 def describe_value(name: str, value, units: str) -> str:
     """A quantity's value with its unit, or the reason it has none."""
+    value = finite_or_unavailable(value)
     if isinstance(value, Unavailable):
         return str(value)
     kind = QUANTITIES[name].kind
@@ -163,6 +169,7 @@ def expectation_lines(checked: list[CheckResult]) -> list[str]:
     return aligned(rows) if rows else ["  (none)"]
 
 
+@guarded
 def full_report(program: Program, results: FirstOrder, checked: list[CheckResult]) -> str:
     system = program.system
     title = system.title or program.file
