@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 __all__ = [
-    "Medium", "Boundary", "ObjectSpec", "StopSpec", "ImageSpec", "Wavelength", "System",
+    "Medium", "Boundary", "GroupPlacement", "ObjectSpec", "StopSpec", "ImageSpec", "Wavelength", "System",
     "REFRACT", "MIRROR", "IDEAL",
 ]
 
@@ -60,6 +60,16 @@ class Boundary:
         kind: REFRACT, MIRROR, or IDEAL (a thin lens of given power, no medium change).
         power: for IDEAL boundaries, the optical power (1/length) in the surrounding medium.
         clear_diameter: optional clear aperture diameter.
+        conic: the conic constant κ (0: a sphere about the vertex curvature).
+        even_terms: coefficients A4, A6, … of the even aspheric polynomial (r⁴, r⁶, …).
+        q_terms: Forbes Qcon coefficients a_0, a_1, … ; q_radius their normalisation radius.
+        obscuration_diameter: a central disc in front of the surface that blocks light.
+        hole_diameter: an inner diameter where light passes without meeting the surface.
+        placement: a decenter/tilt/fold of this boundary, or None (coaxial).
+
+    Every engine reads the shape through `profile` and the aperture through `aperture`
+    (layoutlang/surfaces/): the paraxial engine only ever needs `curvature`, the vertex
+    curvature, which is the same for a sphere, a conic and an asphere.
     """
 
     name: str
@@ -68,6 +78,35 @@ class Boundary:
     kind: str = REFRACT
     power: Number = 0
     clear_diameter: Number | None = None
+    conic: Number = 0.0
+    even_terms: tuple[Number, ...] = ()
+    q_terms: tuple[Number, ...] = ()
+    q_radius: Number | None = None
+    obscuration_diameter: Number | None = None
+    hole_diameter: Number | None = None
+    placement: Any = None  # surfaces.Placement | None
+
+    @property
+    def profile(self):
+        """The surface's shape (a `surfaces.Profile`; flat for an ideal lens)."""
+        from .surfaces.profile import Profile
+
+        if self.kind == IDEAL:
+            return Profile(0.0)
+        return Profile(self.curvature, self.conic, self.even_terms, self.q_terms, self.q_radius)
+
+    @property
+    def aperture(self):
+        """Clear diameter, obscuration and hole (a `surfaces.Aperture`)."""
+        from .surfaces.aperture import Aperture
+
+        return Aperture(self.clear_diameter, self.obscuration_diameter, self.hole_diameter)
+
+    @property
+    def is_spherical(self) -> bool:
+        """A sphere or plane with a plain aperture: the classic closed-form paths apply."""
+        return (not self.even_terms and not self.q_terms and self.conic == 0
+                and self.obscuration_diameter is None and self.hole_diameter is None)
 
 
 @dataclass(frozen=True)
@@ -112,6 +151,17 @@ class Wavelength:
 
 
 @dataclass(frozen=True)
+class GroupPlacement:
+    """A placement (surfaces.Placement) applied to boundaries first..last together, about the
+    vertex of the first (an element decentred or tilted as one body, or a folded group)."""
+
+    first: int
+    last: int
+    placement: Any
+    name: str = ""
+
+
+@dataclass(frozen=True)
 class System:
     """A whole optical layout."""
 
@@ -126,6 +176,12 @@ class System:
     title: str = ""
     units: str = "mm"
     environment: str = "standard air"  # or "vacuum": what indices and wavelengths are relative to
+    groups: tuple[Any, ...] = ()  # GroupPlacement: a placement applied to a run of boundaries
+
+    @property
+    def is_coaxial(self) -> bool:
+        """No boundary or group is placed off the axis: the engines' coaxial path applies."""
+        return not self.groups and all(b.placement is None for b in self.boundaries)
 
     def medium(self, name: str) -> Medium:
         for medium in self.media:

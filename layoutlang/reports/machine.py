@@ -73,11 +73,16 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
 
 def _rays(program: Program, results: FirstOrder) -> dict:
     """The exact-ray and Seidel sections, when the script asks for them (reports/rays.py)."""
-    if not getattr(program, "ray_reports", ()):
-        return {}
-    from .rays import rays_json
+    found = {}
+    if getattr(program, "ray_requests", ()):
+        from .rays import ray_requests_json
 
-    return {"rays": rays_json(program, results)}
+        found["requested_rays"] = ray_requests_json(program, results)
+    if getattr(program, "ray_reports", ()):
+        from .rays import rays_json
+
+        found["rays"] = rays_json(program, results)
+    return found
 
 
 def _colour(program: Program, results: FirstOrder) -> dict:

@@ -16,7 +16,8 @@ from ..testing import format_number
 from .text import aligned
 from .verdicts import focus_verdict, height_verdict
 
-__all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines", "rays_json"]
+__all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines",
+           "ray_request_lines", "rays_json", "ray_requests_json"]
 
 
 def _table(rows: list[list[str]], indent: str = "    ") -> list[str]:
@@ -174,6 +175,23 @@ def requested_ray_lines(program: Program, results: FirstOrder, names: tuple[str,
     return _table(rows, "  ") if rows else []
 
 
+def ray_request_lines(program: Program, results: FirstOrder) -> list[str]:
+    """The `report Q at field F [at wavelength W]` lines: one row each, labelled as written."""
+    if not program.ray_requests:
+        return []
+    from ..engines.rayquantities import ray_quantities
+
+    units = program.system.units
+    rays = ray_quantities(program.system, program.rays, results)
+    rows = []
+    for request in program.ray_requests:
+        value = rays.value(request.name, request.field, "", request.wavelength)
+        text = _pct(value) if QUANTITIES[request.name].kind == "percent" else _len(value, units)
+        rows.append([request.label, text])
+    return ["", "requested: " + ", ".join(r.label for r in program.ray_requests)] + \
+        _table(rows, "  ")
+
+
 def ray_sections(program: Program, results: FirstOrder) -> list[str]:
     """Everything the script asked of the ray engine (nothing when it asked nothing)."""
     lines: list[str] = []
@@ -239,4 +257,22 @@ def rays_json(program: Program, results: FirstOrder) -> dict:
                 "petzval_sum": _json_value(sums.petzval_sum),
                 "petzval_radius": _json_value(sums.petzval_radius),
             }
+    return found
+
+
+def ray_requests_json(program: Program, results: FirstOrder) -> list[dict]:
+    """The `report Q at field F` requests as plain data, labelled as written."""
+    from ..engines.rayquantities import ray_quantities
+
+    rays = ray_quantities(program.system, program.rays, results)
+    found = []
+    for request in program.ray_requests:
+        value = rays.value(request.name, request.field, "", request.wavelength)
+        percent = QUANTITIES[request.name].kind == "percent"
+        if percent and not isinstance(value, Unavailable):
+            value = value * 100
+        field = None if request.field is None else _json_value(request.field)
+        found.append({"quantity": request.name, "label": request.label, "field": field,
+                      "value": _json_value(value),
+                      "unit": "%" if percent else program.system.units})
     return found

@@ -14,15 +14,15 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
-from ..guard import finite_or_unavailable
-from ..testing import format_number
-from ..guard import guarded
+from ..guard import finite_or_unavailable, guarded
+from ..testing import format_number, with_unit
 
 __all__ = [
     "aligned",
     "image_plane_words",
     "setting_lines",
     "SIGN_CONVENTION",
+    "NOTHING_CHECKED",
     "LAYOUT_HEADINGS",
     "layout_rows",
     "layout_table",
@@ -32,6 +32,9 @@ __all__ = [
     "full_report",
     "describe_value",
 ]
+
+#: What a script without `expect` lines is told (report, check, session): it checked nothing.
+NOTHING_CHECKED = "none: this script states no expectations, so nothing was checked"
 
 SIGN_CONVENTION = (
     "signs: light starts travelling in +z; distances are measured along the path and are "
@@ -137,9 +140,7 @@ def describe_value(name: str, value, units: str) -> str:
     if isinstance(value, Unavailable):
         return str(value)
     kind = QUANTITIES[name].kind
-    shown = to_display(value, kind, units)
-    unit = display_unit(kind, units)
-    text = f"{format_number(shown)} {unit}".rstrip()
+    text = with_unit(to_display(value, kind, units), display_unit(kind, units))
     if name == "image distance":
         text += "  (real image, downstream)" if value >= 0 else \
             f"  (virtual image, {_length(-value, units)} upstream of the last boundary)"
@@ -166,7 +167,7 @@ def expectation_lines(checked: list[CheckResult]) -> list[str]:
         e = result.expectation
         rows.append(["holds" if result.passed else "FAILS", f"line {e.span.line}",
                      result.outcome.message])
-    return aligned(rows) if rows else ["  (none)"]
+    return aligned(rows) if rows else ["  " + NOTHING_CHECKED]
 
 
 @guarded
@@ -201,6 +202,10 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
                 from .rays import requested_ray_lines
 
                 lines += requested_ray_lines(program, results, names)
+    if program.ray_requests:  # `report Q at field F` (reports/rays.py)
+        from .rays import ray_request_lines
+
+        lines += ray_request_lines(program, results)
     if program.ray_reports:
         from .rays import ray_sections
 

@@ -11,7 +11,7 @@ from typing import Callable, Iterable
 
 from . import tree as t
 
-__all__ = ["unparse", "unparse_statement", "expression_text", "UnparseError"]
+__all__ = ["unparse", "unparse_statement", "expression_text", "binding_level", "UnparseError"]
 
 
 class UnparseError(TypeError):
@@ -45,6 +45,12 @@ def _level(node: t.Expr) -> int:
     if isinstance(node, t.Negate):
         return _SIGNED
     return _ATOM
+
+
+def binding_level(node: t.Expr) -> int:
+    """How tightly an expression binds (higher binds tighter): text that replaces a
+    sub-expression needs parentheses when it binds more loosely than what it replaces."""
+    return _level(node)
 
 
 def _wrap(node: t.Expr, needed: int) -> str:
@@ -109,11 +115,17 @@ def _Stop(node: t.Stop) -> str:
 
 def _ObjectBefore(node: t.ObjectBefore) -> str:
     text = f"object {expression_text(node.distance)} before"
-    return text if node.height is None else text + f", height {expression_text(node.height)}"
+    return text + _object_options(node)
 
 
 def _ObjectAtInfinity(node: t.ObjectAtInfinity) -> str:
-    text = "object at infinity"
+    return "object at infinity" + _object_options(node)
+
+
+def _object_options(node) -> str:
+    text = ""
+    if node.height is not None:
+        text += f", height {expression_text(node.height)}"
     if node.field_angle is not None:
         text += f", field angle {expression_text(node.field_angle)}"
     return text
@@ -183,7 +195,7 @@ def _pairs(pairs) -> str:
 
 def _MediumModel(node: t.MediumModel) -> str:
     head = f"medium {node.name.text}"
-    if node.kind == "model glass":
+    if node.kind == "nd and abbe number":
         index, abbe = node.values
         text = f"{head} index {expression_text(index)}, abbe number {expression_text(abbe)}"
     elif node.kind == "glass code":
@@ -274,6 +286,8 @@ _RULES: dict[str, Callable] = {
     "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
     "ReportRays": lambda n: f"report {n.what}",
     "ExpectRays": _ExpectRays,
+    "ReportAtField": lambda n: f"report {n.quantity.text} at field {expression_text(n.field)}"
+    + ("" if n.wavelength is None else f" at wavelength {_wavelength_ref(n.wavelength)}"),
     # materials and wavelengths
     "MediumModel": _MediumModel,
     "Surroundings": lambda n: f"layout in {n.environment}",
