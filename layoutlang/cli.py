@@ -144,6 +144,11 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
             program, _, checked = _evaluate(path)
             for warning in getattr(program, "warnings", ()):  # e.g. outside a material's range
                 print(warning, file=sys.stderr)
+            if program.system.beam is not None:  # clipping past a stated limit
+                from .reports.beams import beam_warnings
+
+                for warning in beam_warnings(program):
+                    print(f"{path}: {warning}", file=sys.stderr)
         except BrokenPipeError:
             raise
         except Exception as error:  # noqa: BLE001 - a crash in one file never stops the next
