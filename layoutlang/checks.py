@@ -12,7 +12,7 @@ from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
 
 __all__ = ["CheckResult", "QuantityReading", "check_program", "evaluate_program", "read_quantity",
-           "display_unit", "to_display"]
+           "display_unit", "to_display", "surface_value"]
 
 
 @dataclass(frozen=True)
@@ -40,6 +40,16 @@ def to_display(value, kind: str, units: str):
     if kind == PERCENT and isinstance(value, (int, float)):
         return value * 100.0
     return value
+
+
+def surface_value(request, system, results):
+    """`edge thickness of NAME` or `sag of NAME` (engines/buildable.py)."""
+    from .engines.buildable import edge_thickness, surface_sag
+
+    i = system.boundary_index(request.surface)
+    if request.name == "edge thickness":
+        return edge_thickness(system, results, i)
+    return surface_sag(system, results, i)
 
 
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
@@ -107,7 +117,10 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
     units = program.system.units
     kind = kind or QUANTITIES[quantity].kind
     written, label = label, quantity
-    if request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
+    if request is not None and hasattr(request, "surface"):  # edge thickness of NAME
+        value = surface_value(request, program.system, results)
+        label = request.describe()
+    elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
         from .engines.chromatic import evaluate
 
         value = evaluate(request, program.system, results)

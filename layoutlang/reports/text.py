@@ -196,6 +196,12 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
                 from .rays import requested_ray_lines
 
                 lines += requested_ray_lines(program, results, names)
+    if program.surface_requests:  # `report edge thickness of NAME`
+        from ..checks import surface_value
+
+        lines += ["", "requested: " + ", ".join(r.describe() for r in program.surface_requests)]
+        lines += aligned([[r.describe(), describe_value(r.name, surface_value(
+            r, system, results), system.units)] for r in program.surface_requests])
     if program.ray_requests:  # `report Q at field F` (reports/rays.py)
         from .rays import ray_request_lines
 
