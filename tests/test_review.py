@@ -107,7 +107,7 @@ def test_inserted_surface_is_an_insertion_not_a_change_of_what_follows(repo, cap
     _, data = compare_json(capsys)
     inserted = changes(data, "inserted")
     assert [c["what"] for c in inserted] == ["surface window", "gap after surface window"]
-    assert inserted[0]["where"] == "after gap after surface joint"
+    assert inserted[0]["where"] == "after surface joint" and "where" not in inserted[1]
     assert [c["what"] for c in changes(data, "changed")] == ["gap after surface joint"]
     assert not changes(data, "removed")  # surface back, the stop… are the same statements
 

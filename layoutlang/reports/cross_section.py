@@ -431,7 +431,7 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
         rays = start
         for k in boundary_steps:
             rays = realrays.trace(start.copy(), geo, indices, geo.steps[: k + 1])
-            if rays.status[0] in (realrays.MISSED, realrays.TOTAL_REFLECTION) or \
+            if rays.status[0] in realrays.LOST or \
                     not math.isfinite(float(rays.y[0])):
                 lost = f"an exact {role} ray is {realrays.STATUS_WORDS[int(rays.status[0])]} at " \
                        f"{geo.steps[k].name}"
