@@ -130,10 +130,18 @@ def semi_apertures(system: System, results: FirstOrder) -> list[tuple[float | No
         if clear is not None:
             found.append((clear / 2, True))
         elif marginal is not None:
-            found.append(((abs(m[i]) + abs(c[i])) * APERTURE_MARGIN, False))
+            drawn = _number((abs(m[i]) + abs(c[i])) * APERTURE_MARGIN)
+            found.append((drawn if drawn else None, False))  # no finite bundle: no aperture
         else:
             found.append((None, False))
     return found
+
+
+def _finite_problem(problem: Problem) -> bool:
+    """Only problems whose numbers are finite are worth words (huge or tiny layouts overflow
+    and say so elsewhere)."""
+    return all(_number(v) is not None for v in problem.values.values()
+               if isinstance(v, (int, float)) and not isinstance(v, bool))
 
 
 def sag_at(system: System, i: int, height: float) -> float | None:
@@ -236,7 +244,7 @@ def problems(system: System, results: FirstOrder) -> list[Problem]:
         ratios = []
         for i, boundary in enumerate(boundaries):
             clear = _number(boundary.clear_diameter)
-            if clear is not None and heights[i] != 0:
+            if clear is not None and heights[i] != 0 and math.isfinite(heights[i]):
                 ratios.append((clear / 2 / abs(heights[i]), i))
         if ratios:
             ratio, i = min(ratios)
@@ -244,4 +252,4 @@ def problems(system: System, results: FirstOrder) -> list[Problem]:
                 found.append(Problem("limits aperture", (i,), ratio * ratio < 0.5,
                                      {"passing": ratio * ratio, "height": abs(heights[i]),
                                       "semi": _number(boundaries[i].clear_diameter) / 2}))
-    return found
+    return [p for p in found if _finite_problem(p)]
