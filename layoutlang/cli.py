@@ -131,6 +131,11 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
             program, _, checked = _evaluate(path)
             for warning in getattr(program, "warnings", ()):  # e.g. outside a material's range
                 print(warning, file=sys.stderr)
+            if program.system.beam is not None:  # clipping past a stated limit
+                from .reports.beams import beam_warnings
+
+                for warning in beam_warnings(program):
+                    print(f"{path}: {warning}", file=sys.stderr)
         except LayoutError as error:
             status = EXIT_ERROR
             outcomes.append((path, [], str(error)))

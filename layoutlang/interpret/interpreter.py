@@ -22,6 +22,7 @@ from ..syntax.parser import parse
 from ..system import IDEAL, MIRROR, REFRACT, Boundary, ImageSpec, Medium, ObjectSpec
 from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
+from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
 from .symbolstatements import SymbolicStatements
@@ -71,6 +72,7 @@ class Program:
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
+    beams: Any = None  # a beam script's BeamSettings (interpret/beamstatements.py), else None
 
     def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
         from ..notebook import program_html
@@ -99,7 +101,8 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
     _Interpreter(script, base or Path.cwd()).run_statements()
 
 
-class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BuildStatements):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
+                   BuildStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -480,6 +483,8 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BuildS
         """report | report QUANTITY, QUANTITY, ..."""
         if self.report_chromatic(node):  # colour quantities (materialstatements.py)
             return
+        if self.report_beam(node):  # beam quantities (beamstatements.py)
+            return
         for quantity in node.quantities:
             if self.quantity(quantity).name in SURFACE_QUANTITIES:
                 raise LayoutValueError(
@@ -566,6 +571,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BuildS
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.beam_system(system)  # the beam and fibre (beamstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
 
@@ -579,11 +585,11 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BuildS
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
         return self.check_buildable(self.finish_symbolic(Program(
-            self.script.file, system, expectations, tuple(self.reports), tuple(self.hazards),
-            dict(self.names), rays=rays, ray_reports=self.ray_reports(),
-            ray_requests=ray_requests,
+            self.script.file, system, expectations, tuple(self.reports),
+            self.beam_hazards(self.hazards), dict(self.names), rays=rays,
+            ray_reports=self.ray_reports(), ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
-            surface_requests=self.surface_reports(system))))
+            beams=self.beam_settings(system), surface_requests=self.surface_reports(system))))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -627,6 +633,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BuildS
         return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
 
     def expectation(self, node: t.Expect) -> Expectation:
+        beam = self.beam_expectation(node)  # beam quantities (beamstatements.py)
+        if beam is not None:
+            return beam
         if self.quantity(node.quantity).name in SURFACE_QUANTITIES:  # edge thickness of NAME
             request = self.surface_request(self.quantity(node.quantity).name,
                                            getattr(node, "qualifiers", ()), node,
@@ -690,7 +699,8 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, SymbolicStatements, MaterialStatements, BuildStatements,
+    for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
+                BuildStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

@@ -126,6 +126,8 @@ class MaterialStatements:
             return
         if self.report_surface(node):  # edge thickness of NAME (buildstatements.py)
             return
+        if self.report_beam(node):  # `report beam radius at front` (beamstatements.py)
+            return
         self._materials()["reports"].append((node, (self.file, self.lines)))
 
     def report_chromatic(self, node: t.Report) -> bool:

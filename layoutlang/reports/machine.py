@@ -102,7 +102,17 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
         "expectations": _checks(checked),
         **_colour(program, results),
         **_rays(program, results),
+        **_beam(program),
     }
+
+
+def _beam(program: Program) -> dict:
+    """The Gaussian beam section, when the script declares a beam (reports/beams.py)."""
+    if program.system.beam is None:
+        return {}
+    from .beams import beam_json
+
+    return {"beam": beam_json(program)}
 
 
 def _rays(program: Program, results: FirstOrder) -> dict:

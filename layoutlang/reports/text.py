@@ -198,7 +198,8 @@ def expectation_lines(checked: list[CheckResult]) -> list[str]:
 
 def requested_blocks(program: Program, results: FirstOrder, colour: bool | None = None) -> list:
     """The sections a script asks for beyond the layout and its first-order properties, in
-    report order: `report` lines, ray requests, exact rays and Seidel sums, colour. The text
+    report order: `report` lines, ray requests, exact rays and Seidel sums, colour, the
+    Gaussian beam. The text
     report and the documents both print exactly these.
 
     Args:
@@ -246,6 +247,10 @@ def requested_blocks(program: Program, results: FirstOrder, colour: bool | None 
         from .chromatic import colour_blocks
 
         out += colour_blocks(program, results)
+    if system.beam is not None:  # the Gaussian beam (reports/beams.py)
+        from .beams import beam_blocks
+
+        out += beam_blocks(program)
     return out
 
 
