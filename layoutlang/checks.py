@@ -11,6 +11,7 @@ from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, PERCENT, POWER, QUANTIT
 from .quantities import RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
+from .guard import guarded
 
 __all__ = ["CheckResult", "QuantityReading", "check_program", "evaluate_program", "read_quantity",
            "display_unit", "to_display", "surface_value", "beam_label"]
@@ -61,6 +62,7 @@ def beam_label(name: str, place) -> str:
     return name if place is None or not place.label else f"{name} at {place.label}"
 
 
+@guarded
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     """The first-order results of a program and the outcome of each expectation, as every
     front end reports them (a symbolic script at its nominal values, which must all be given)."""
@@ -72,6 +74,7 @@ def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     return results, check_program(program, results)
 
 
+@guarded
 def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
     """Every expectation of the program with its outcome, in script order."""
     if results is None:

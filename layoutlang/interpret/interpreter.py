@@ -14,7 +14,8 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import LayoutFileError, LayoutNameError, LayoutUnitError
-from ..errors import LayoutValueError, Span
+from ..errors import LayoutError, LayoutValueError, Span
+from ..guard import as_arithmetic_error, guarded
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion
 from ..syntax import tree as t
@@ -90,6 +91,7 @@ def load_file(path: str | Path) -> Program:
     return interpret(parse(text, str(path)), base=path.parent)
 
 
+@guarded
 def interpret(script: t.Script, base: Path | None = None) -> Program:
     """Build the Program of a parsed script (`base` resolves `use "file"`)."""
     return _Interpreter(script, base or Path.cwd()).run()
@@ -241,6 +243,13 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
                     self.execute(statement)
                 except RecursionError:
                     raise LayoutValueError(TOO_DEEP, self.span(statement)) from None
+                except LayoutError:
+                    raise
+                except Exception as error:  # noqa: BLE001 - arithmetic said at its statement
+                    converted = as_arithmetic_error(error, span=self.span(statement))
+                    if converted is None:
+                        raise
+                    raise converted from None
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)
