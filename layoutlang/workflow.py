@@ -12,8 +12,10 @@ from pathlib import Path
 
 from .cli import EXIT_ERROR, EXIT_FAILED, EXIT_OK
 from .errors import LayoutError
+from .guard import unexpected_error
 
-__all__ = ["add_commands", "run_command", "write_junit", "DRAWING_FORMATS", "REPORT_FORMATS"]
+__all__ = ["add_commands", "run_command", "write_junit", "report_format", "DRAWING_FORMATS",
+           "REPORT_FORMATS"]
 
 DRAWING_FORMATS = ("svg", "png", "pdf")
 REPORT_FORMATS = ("md", "html", "latex")
@@ -22,7 +24,8 @@ REPORT_FORMATS = ("md", "html", "latex")
 def add_commands(commands) -> None:
     """Add `format`, `draw` and `report` to the command line's subparsers."""
     fmt = commands.add_parser("format", help="rewrite scripts in the canonical layout")
-    fmt.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
+    fmt.add_argument("files", nargs="+", metavar="FILE",
+                     help="layout scripts (.lay), or directories: every .lay below them")
     fmt.add_argument("--check", action="store_true",
                      help="change nothing; exit 1 if a file would change")
     fmt.add_argument("--diff", action="store_true", help="print what would change, write nothing")
@@ -35,8 +38,9 @@ def add_commands(commands) -> None:
                            "paraxially")
     report = commands.add_parser("report", help="one document: tables, checks and the drawing")
     report.add_argument("file", help="a layout script (.lay)")
-    report.add_argument("--format", choices=REPORT_FORMATS, default="md", dest="doc_format",
-                        help="document format (default md)")
+    report.add_argument("--format", choices=REPORT_FORMATS, default=None, dest="doc_format",
+                        help="document format (default: from the -o extension .md, .html/.htm "
+                             "or .tex; md on standard output)")
     report.add_argument("-o", "--output", metavar="OUT",
                         help="write the document here (the drawing goes beside it); default: "
                              "standard output")
@@ -54,12 +58,16 @@ def run_command(args: argparse.Namespace) -> int:
 def _format(paths: list[str], check: bool, show_diff: bool) -> int:
     from .formatter import format_file
 
+    from .cli import scripts_in
+
     status = EXIT_OK
-    for path in paths:
+    for path in scripts_in(paths):
         try:
             result = format_file(path)
-        except LayoutError as error:
-            print(error, file=sys.stderr)
+        except Exception as error:  # noqa: BLE001 - one file's failure never stops the next
+            if isinstance(error, BrokenPipeError):
+                raise
+            print(unexpected_error(error, path, "format"), file=sys.stderr)
             status = EXIT_ERROR
             continue
         if not result.changed:
@@ -104,9 +112,33 @@ def _draw(path: str, output: str, exact: bool = True) -> int:
     return EXIT_OK
 
 
-def _report(path: str, doc_format: str, output: str | None) -> int:
+#: Document formats by file extension, for `report -o` without `--format`.
+_REPORT_SUFFIXES = {"md": "md", "markdown": "md", "html": "html", "htm": "html",
+                    "tex": "latex", "latex": "latex"}
+
+
+def report_format(output: str | None, doc_format: str | None) -> str:
+    """The document format: as given, else from the output's extension, else Markdown.
+
+    Raises:
+        LayoutError: no format given and the extension names none.
+    """
+    if doc_format is not None:
+        return doc_format
+    if output is None:
+        return "md"
+    suffix = Path(output).suffix.lower().lstrip(".")
+    if suffix not in _REPORT_SUFFIXES:
+        raise LayoutError(f"cannot tell the document format of {output!r}",
+                          expected="--format md|html|latex, or a file name ending in .md, "
+                                   ".html or .tex")
+    return _REPORT_SUFFIXES[suffix]
+
+
+def _report(path: str, doc_format: str | None, output: str | None) -> int:
     from .reports.document import render_document
 
+    doc_format = report_format(output, doc_format)
     document = render_document(path, doc_format, output)
     if output is None:
         sys.stdout.write(document.text)

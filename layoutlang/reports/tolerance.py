@@ -6,9 +6,8 @@ from __future__ import annotations
 import math
 
 from ..testing import format_number
-from .text import aligned
 
-__all__ = ["tolerance_lines", "tolerance_json", "limit_words", "perturbation_words"]
+__all__ = ["tolerance_lines", "tolerance_blocks", "tolerance_json", "limit_words", "perturbation_words"]
 
 
 def _num(value: float, signed: bool = False) -> str:
@@ -56,23 +55,33 @@ def _label(expectation, file: str = "") -> str:
 
 
 def tolerance_lines(result, units: str, file: str = "") -> list[str]:
-    """The section as text lines (no trailing blank); `file`: the script's own file, so that
-    expectations from used files are named by theirs."""
+    """The section as text lines (what `layoutlang tolerance` prints)."""
+    from .blocks import to_text
+
+    return to_text(tolerance_blocks(result, units, file))
+
+
+def tolerance_blocks(result, units: str, file: str = "") -> list:
+    """The section as report blocks (the text report and the documents print the same);
+    `file`: the script's own file, so that expectations from used files are named by theirs."""
+    from .blocks import Heading, Line, Table
+
     setup = result.setup
     count = len(setup.items)
-    lines = ["", "tolerances"]
+    out = [Heading("tolerances")]
     adjusted = ", ".join(c.label for c in setup.compensators) or "nothing (no compensator)"
-    lines.append(f"  {count} toleranced number{'s' if count != 1 else ''}; adjusted on every "
-                 f"unit: {adjusted}")
+    out.append(Line(f"{count} toleranced number{'s' if count != 1 else ''}; adjusted on every "
+                    f"unit: {adjusted}"))
     if setup.compensators:
-        lines.append("  compensation is paraxial: the image plane to each unit's paraxial focus, "
-                     "or a gap until the unit's paraxial image lands on the image plane")
+        out.append(Line("compensation is paraxial: the image plane to each unit's paraxial "
+                        "focus, or a gap until the unit's paraxial image lands on the image "
+                        "plane"))
     expectations = result.expectations
     if not expectations:
-        lines.append("  the script states no expectation to judge a built unit by")
-        return lines
-    lines += ["", "  sensitivity: each tolerance alone at + and − its limit, worst first "
-                  "(share: of the expectation's margin)"]
+        out.append(Line("the script states no expectation to judge a built unit by"))
+        return out
+    out.append(Heading("tolerance sensitivity: each tolerance alone at + and − its limit, "
+                       "worst first (share: of the expectation's margin)"))
     header = ["tolerance", "limit", "share"] + [
         f"{_label(e, file)} ({_unit(e, units)})".replace(" ()", "") for e in expectations]
     rows = [header]
@@ -81,47 +90,47 @@ def tolerance_lines(result, units: str, file: str = "") -> list[str]:
         for plus, minus in zip(row.plus, row.minus):
             cells.append(f"{_num(plus, True)} / {_num(minus, True)}")
         rows.append(cells)
-    lines += aligned(rows, "    ")
-    lines += ["", "  estimate: standard deviation as the root-sum-square of the linear "
-                  "sensitivities"]
+    out.append(Table(rows))
+    out.append(Heading("tolerance estimate: standard deviation as the root-sum-square of the "
+                       "linear sensitivities"))
     rows = [["expectation", "nominal", "std dev", "margin"]]
     for e, nominal, sigma, room in zip(expectations, result.nominal, result.estimate,
                                        result.margins):
         unit = _unit(e, units)
         rows.append([_label(e, file), f"{_num(nominal)} {unit}".rstrip(), _num(sigma),
                      _num(room)])
-    lines += aligned(rows, "    ")
+    out.append(Table(rows))
     monte = result.monte_carlo
     if monte is None:
-        return lines
+        return out
     state = (f"PARTIAL: stopped after {monte.samples} of {monte.requested} units"
              if monte.partial else f"{monte.samples} units")
-    lines += ["", f"  monte carlo: {state}, seed {monte.seed} (each batch of units seeded on "
-                  f"its own: the same numbers on any number of workers)"]
+    out.append(Heading(f"monte carlo: {state}, seed {monte.seed} (each batch of units seeded "
+                       f"on its own: the same numbers on any number of workers)"))
     low, high = monte.interval
-    lines.append(f"    yield (every expectation met): {_percent(monte.yield_all)} "
-                 f"({monte.passed_all} of {monte.samples}; 95 % Wilson interval "
-                 f"{_percent(low)} to {_percent(high)})")
+    out.append(Line(f"yield (every expectation met): {_percent(monte.yield_all)} "
+                    f"({monte.passed_all} of {monte.samples}; 95 % Wilson interval "
+                    f"{_percent(low)} to {_percent(high)})"))
     rows = [["expectation", "yield", "mean", "std dev", "1 %", "5 %", "50 %", "95 %", "99 %"]]
     for i, e in enumerate(expectations):
         rows.append([_label(e, file), _percent(monte.yields[i]), _num(monte.means[i]),
                      _num(monte.deviations[i])] + [_num(p) for p in monte.percentiles[i]])
-    lines += aligned(rows, "    ")
+    out.append(Table(rows))
     for i, e in enumerate(expectations):
         if monte.not_computed[i]:
-            lines.append(f"    note: {_label(e, file)} could not be computed for "
-                         f"{monte.not_computed[i]} units (counted as failing)")
+            out.append(Line(f"note: {_label(e, file)} could not be computed for "
+                            f"{monte.not_computed[i]} units (counted as failing)"))
     if result.one_by_one:
-        lines.append("    note: taken unit by unit (not in the batched paraxial pass): "
-                     + "; ".join(result.one_by_one))
+        out.append(Line("note: taken unit by unit (not in the batched paraxial pass): "
+                        + "; ".join(result.one_by_one)))
     if monte.worst:
-        lines.append("    worst units:")
+        out.append(Line("worst units:"))
         for unit, deltas, failures in monte.worst:
             moved = ", ".join(perturbation_words(item, d, units)
                               for item, d in zip(setup.items, deltas))
-            lines.append(f"      unit {unit + 1}: fails {failures} expectation"
-                         f"{'s' if failures != 1 else ''}; {moved}")
-    return lines
+            out.append(Line(f"unit {unit + 1}: fails {failures} expectation"
+                            f"{'s' if failures != 1 else ''}; {moved}", "    "))
+    return out
 
 
 def tolerance_json(result) -> dict:
