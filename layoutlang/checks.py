@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from .engines.firstorder import FirstOrder, first_order
@@ -26,7 +27,7 @@ class CheckResult:
 def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
-    return {"length": units, "power": "diopters", PERCENT: "%"}.get(kind, "")
+    return {"length": units, "power": "diopters", PERCENT: "%", "angle": "deg"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
@@ -35,6 +36,8 @@ def to_display(value, kind: str, units: str):
         return value * 1000.0 / LENGTH_UNITS[units]
     if kind == PERCENT and isinstance(value, (int, float)):
         return value * 100.0
+    if kind == "angle" and isinstance(value, (int, float)):
+        return math.degrees(value)
     return value
 
 

@@ -24,6 +24,7 @@ from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
+from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
 from ..engines.raysettings import RaySettings
 
@@ -95,7 +96,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
     _Interpreter(script, base or Path.cwd()).run_statements()
 
 
-class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, PlaceStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -505,6 +506,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.placed_system(system)  # tilts, decenters, folds, prisms (placestatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
 
@@ -606,7 +608,8 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, SymbolicStatements, MaterialStatements, _Interpreter)
+    for cls in (RayStatements, SymbolicStatements, MaterialStatements, PlaceStatements,
+                _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
 }

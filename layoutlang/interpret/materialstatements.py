@@ -14,7 +14,7 @@ from typing import Any
 from ..errors import LayoutNameError, LayoutUnitError, LayoutValueError
 from ..measure import Measure, from_nanometres, to_nanometres
 from ..materials.lines import SPECTRAL_LINES, line_letter
-from ..quantities import REPORT_ORDER, lookup
+from ..quantities import REPORT_ORDER, WAVELENGTH_PLACED, lookup
 from ..syntax import tree as t
 from ..system import System, Wavelength
 
@@ -312,6 +312,8 @@ class MaterialStatements:
         info = lookup(node.quantity.text)
         if info is None or not qualifiers and info.name not in CHROMATIC_QUANTITIES:
             return None
+        if info.name in WAVELENGTH_PLACED and all(q.kind == "at" for q in qualifiers):
+            return None  # a deviation at a wavelength: traced as a ray quantity
         return self.colour_request(info.name, qualifiers, node, self._materials()["system"])
 
     def colour_request(self, name: str, qualifiers, node: t.Node, system: System):

@@ -12,7 +12,7 @@ from typing import Any
 
 from ..engines.raysettings import RaySettings
 from ..errors import LayoutUnitError, LayoutValueError
-from ..quantities import FIELD_DEFAULTS, PERCENT, RAY_QUANTITIES, lookup
+from ..quantities import ANGLE, FIELD_DEFAULTS, PERCENT, RAY_QUANTITIES, WAVELENGTH_PLACED, lookup
 from ..syntax import tree as t
 
 __all__ = ["RayStatements"]
@@ -138,10 +138,17 @@ class RayStatements:
                                         "distortion")
         wavelength = None
         ref = getattr(node, "wavelength", None)
+        qualifiers = getattr(node, "qualifiers", ())
+        if qualifiers:  # `expect prism deviation at wavelength F ...` (materials grammar)
+            if len(qualifiers) > 1:
+                raise LayoutValueError("'at' is given twice", self.span(qualifiers[1]))
+            ref = qualifiers[0].wavelengths[0]
         if ref is not None:
-            if info.name not in ("rms spot radius", "largest spot radius"):
+            if info.name not in ("rms spot radius", "largest spot radius") \
+                    and info.name not in WAVELENGTH_PLACED:
                 raise LayoutValueError(f"{info.name} is taken at the primary wavelength only",
-                                       self.span(ref), hint="spot radii take 'at wavelength W'")
+                                       self.span(ref), hint="spot radii and deviations take "
+                                       "'at wavelength W'")
             wavelength, _ = self._resolve_ref(ref)  # materials statements: lines, names, nm
         if scale and info.name != "marginal focus shift":
             raise LayoutValueError("only the marginal focus shift is compared with the depth "
@@ -152,6 +159,9 @@ class RayStatements:
         elif info.kind == PERCENT:
             kind = PERCENT
             convert = self._percent
+        elif info.kind == ANGLE:
+            kind = ANGLE
+            convert = lambda e: self.angle(e, "the expected angle")  # noqa: E731
         else:
             kind = info.kind
             convert = lambda e: self.length(e, "the expected value")  # noqa: E731
