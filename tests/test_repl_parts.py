@@ -73,6 +73,26 @@ def test_completion_continues_a_quantity_of_several_words() -> None:
     assert "front principal point" in completions("expect front p")
 
 
+def test_completion_offers_only_media_after_into() -> None:
+    completer = LayoutCompleter(lambda: ("front", "joint", "crown", "air"),
+                                media=lambda: ("air", "crown"))
+    def offered(text: str) -> list[str]:
+        return [c.text for c in completer.get_completions(Document(text), CompleteEvent())]
+    assert offered("surface back radius -40 into ") == ["air", "crown"]
+    assert offered("start in ") == ["air", "crown"]
+    assert offered("change front medium to ") == ["air", "crown"]
+    assert "front" in offered("stop at ")
+
+
+def test_completion_offers_units_that_fit_the_value() -> None:
+    after_radius = completions("change front radius to 50 ")
+    assert "mm" in after_radius and "deg" not in after_radius and "rad" not in after_radius
+    assert "diopters" not in completions("surface front radius 5 ")
+    assert set(completions("object at infinity, field angle 5 ")) >= {"deg", "rad"}
+    assert "mm" not in completions("object at infinity, field angle 5 ")
+    assert "diopters" in completions("lens l1 power 5 ")
+
+
 def test_completion_after_a_wrong_start_offers_nothing() -> None:
     assert candidates("surface ) ") == set()
 
@@ -159,5 +179,7 @@ def test_unit_words_offered_are_the_units_the_grammar_lexes() -> None:
     pattern = next(term.pattern.to_regexp() for term in parser().terminals if term.name == "UNIT")
     assert all(re.fullmatch(pattern, word) for word in _UNIT_WORDS)
     # and every spelled-out unit of the grammar is offered (µm is offered as um)
-    spelled = set(re.findall(r"[a-zµ]+", pattern.split("\\b")[0])) - {"µm"}
+    # (feature grammars may extend UNIT with more groups, e.g. mrad and dB in beams.lark)
+    groups = re.findall(r"\(([^()]*)\)\\b", pattern)
+    spelled = {w for group in groups for w in re.findall(r"[a-zA-Zµ]+", group)} - {"µm"}
     assert spelled == set(_UNIT_WORDS)

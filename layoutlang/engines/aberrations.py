@@ -237,7 +237,7 @@ def marginal(s: RaySetup, pupils: Sequence[float]) -> list[MarginalRow]:
     rows = []
     for i, pupil in enumerate(pupils):
         lost = _lost_words(rays, s.geo, np.arange(len(pupils)) == i)
-        if rays.status[i] in (realrays.MISSED, realrays.TOTAL_REFLECTION):
+        if rays.status[i] in realrays.LOST:
             why = Unavailable("none: the ray is lost")
             rows.append(MarginalRow(pupil, why, s.paraxial_focus, why, why, lost))
             continue
@@ -292,7 +292,7 @@ def chief(s: RaySetup, fields: Sequence[float]) -> list[ChiefRow]:
         x, y = _to_plane(rays, s.image_z)
         para = paraxial_chief_height(s, value)
         lost = _lost_words(rays, s.geo)
-        if rays.status[0] in (realrays.MISSED, realrays.TOTAL_REFLECTION) or not np.isfinite(y[0]):
+        if rays.status[0] in realrays.LOST or not np.isfinite(y[0]):
             why = Unavailable("none: the chief ray is lost")
             rows.append(ChiefRow(value, why, para, why, why, lost))
             continue

@@ -50,7 +50,7 @@ class _Move:
 class PlaceStatements:
     """`tilt`, `decenter`, `fold`, `prism`, `tilt image plane`."""
 
-    def _place(self) -> dict:
+    def _placement_state(self) -> dict:
         state = self.__dict__.get("_place_state")
         if state is None:
             state = self.__dict__["_place_state"] = {
@@ -69,7 +69,7 @@ class PlaceStatements:
     def statement_PlaceMove(self, node: t.PlaceMove) -> None:
         """tilt NAME [through NAME] by ANGLE about x|y|z[, axis follows|returns]
         decenter NAME [through NAME] by LENGTH along x|y[, axis follows|returns]"""
-        state = self._place()
+        state = self._placement_state()
         key = (node.first.text, None if node.last is None else node.last.text)
         move = state["moves"].get(key)
         if move is None:
@@ -127,7 +127,7 @@ class PlaceStatements:
         self.statement_BoundaryStatement(mirror)
         tilt = [0.0, 0.0, 0.0]
         tilt[_AXES[node.axis]] = angle
-        self._place()["fixed"][len(self.boundaries) - 1] = (Placement(tilt=tuple(tilt),
+        self._placement_state()["fixed"][len(self.boundaries) - 1] = (Placement(tilt=tuple(tilt),
                                                                       axis=FOLLOWS), node)
 
     def statement_Prism(self, node: t.Prism) -> None:
@@ -159,7 +159,7 @@ class PlaceStatements:
             inner_gap(size / 2)
             face("fold", glass, kind="mirror",
                  clear=t.Number(repr(float(size) * math.sqrt(2)), None, pos=node.size.pos))
-            self._place()["fixed"][first + 1] = (Placement(tilt=(math.pi / 4, 0.0, 0.0),
+            self._placement_state()["fixed"][first + 1] = (Placement(tilt=(math.pi / 4, 0.0, 0.0),
                                                            axis=FOLLOWS), node)
             inner_gap(size / 2)
             face("back", outside, clear=side)
@@ -183,13 +183,13 @@ class PlaceStatements:
             face("front", glass, clear=node.clear_diameter)
             inner_gap(self._place_number(thickness, node.thickness))
             face("back", outside, clear=node.clear_diameter)
-            self._place()["prism_faces"] = self._place().get("prism_faces", [])
-            self._place()["prism_faces"].append((first, apex, incidence, node))
-        self._place()["prisms"].append((first, len(self.boundaries) - 1, node.name.text))
+            self._placement_state()["prism_faces"] = self._placement_state().get("prism_faces", [])
+            self._placement_state()["prism_faces"].append((first, apex, incidence, node))
+        self._placement_state()["prisms"].append((first, len(self.boundaries) - 1, node.name.text))
 
     def statement_ImageTilt(self, node: t.ImageTilt) -> None:
         """tilt image plane by ANGLE about x|y"""
-        state = self._place()
+        state = self._placement_state()
         self.once(state["image_node"], node, "the tilt of the image plane")
         if node.axis == "z":
             raise LayoutValueError("turning the image plane about the axis changes nothing that "
@@ -205,7 +205,7 @@ class PlaceStatements:
     # --- at the end of the script -------------------------------------------------------------
     def placed_system(self, system: System) -> System:
         """The layout with every placement resolved (media and indices known by now)."""
-        state = self._place()
+        state = self._placement_state()
         if not (state["moves"] or state["fixed"] or state["prisms"] or state["image"]):
             return system
         boundaries = list(system.boundaries)

@@ -27,11 +27,22 @@ def _ident(token: Token | None) -> t.Ident | None:
     return None if token is None else t.Ident(str(token), pos=_token_pos(token))
 
 
+class OptionTwice(Exception):
+    """The same `, option value` appears twice in one statement (which one would count?)."""
+
+    def __init__(self, key: str, value) -> None:
+        super().__init__(key)
+        self.key, self.value = key, value
+
+
 def _options(items) -> dict:
-    """Collect trailing `, option value` pairs given as (key, value) tuples."""
+    """Collect trailing `, option value` pairs given as (key, value) tuples; an option given
+    twice is refused rather than one of them silently winning."""
     found: dict = {}
     for item in items:
         if isinstance(item, tuple):
+            if item[0] in found:
+                raise OptionTwice(item[0], item[1])
             found[item[0]] = item[1]
     return found
 
@@ -87,11 +98,13 @@ class _Builder(Transformer):
 
     def object_at_infinity(self, meta, items):
         options = _options(items)
-        return t.ObjectAtInfinity(options.get("field angle"), pos=_pos(meta))
+        return t.ObjectAtInfinity(options.get("field angle"), options.get("height"),
+                                  pos=_pos(meta))
 
     def object_before(self, meta, items):
         options = _options(items[1:])
-        return t.ObjectBefore(items[0], options.get("height"), pos=_pos(meta))
+        return t.ObjectBefore(items[0], options.get("height"), options.get("field angle"),
+                              pos=_pos(meta))
 
     def radius(self, meta, items):
         return t.Shape("radius", items[0], pos=_pos(meta))
@@ -285,6 +298,10 @@ class _Builder(Transformer):
     def report_seidel_sums(self, meta, items):
         return t.ReportRays("seidel sums", pos=_pos(meta))
 
+    def report_at_field(self, meta, items):
+        quantity, field, wavelength = items
+        return t.ReportAtField(quantity, field, wavelength, pos=_pos(meta))
+
     def ray_wavelength(self, meta, items):
         return items[-1]  # the WavelengthRef; the optional word 'wavelength' is noise
 
@@ -366,7 +383,7 @@ class _Builder(Transformer):
 
     def medium_model_glass(self, meta, items):
         name, index, abbe, *rest = items
-        return self._medium_model(meta, name, "model glass", rest, values=(index, abbe))
+        return self._medium_model(meta, name, "nd and abbe number", rest, values=(index, abbe))
 
     def medium_glass_code(self, meta, items):
         name, code, *rest = items
@@ -443,6 +460,17 @@ class _Builder(Transformer):
 _BUILDER = _Builder()
 
 
+def _option_twice(error: OptionTwice, file: str, text: str):
+    from ..errors import LayoutSyntaxError, Span
+
+    pos = error.value.pos if hasattr(error.value, "pos") else t.NO_POS
+    line_text = text.split("\n")[pos.line - 1] if 0 < pos.line <= text.count("\n") + 1 else ""
+    end = pos.end_column if pos.end_line == pos.line else len(line_text) + 1
+    return LayoutSyntaxError(f"'{error.key}' is given twice in this statement",
+                             Span(file, pos.line, pos.column, max(end, pos.column + 1), line_text),
+                             hint="keep one of them")
+
+
 def build_script(parse_tree, file: str, text: str) -> t.Script:
     """The syntax tree of one parsed file (statement by statement, so that a statement too
     deeply nested to build is reported at its own line)."""
@@ -457,7 +485,10 @@ def build_script(parse_tree, file: str, text: str) -> t.Script:
             try:
                 statements.append(_BUILDER.transform(child))
             except (RecursionError, VisitError) as error:
-                if not isinstance(getattr(error, "orig_exc", error), RecursionError):
+                cause = getattr(error, "orig_exc", error)
+                if isinstance(cause, OptionTwice):
+                    raise _option_twice(cause, file, text) from None
+                if not isinstance(cause, RecursionError):
                     raise
                 line = child.meta.line
                 line_text = text.split("\n")[line - 1] if line else ""
@@ -512,4 +543,60 @@ def _symbolic_builders() -> None:
 
 
 _symbolic_builders()
+
+
+def _beam_builders() -> None:
+    """The builder methods of grammar/beams.lark (beam, fibre, limits, `at D after`)."""
+
+    def option(kind, with_value=True):
+        def build(self, meta, items):
+            values = [i for i in items if not isinstance(i, Token)]
+            value = values[0] if with_value and values else None
+            at = values[1] if len(values) > 1 else None
+            return t.BeamOption(kind, value, at, pos=_pos(meta))
+        build.__name__ = "beam_" + kind.replace(" ", "_")
+        return build
+
+    table = {
+        "beam_waist_radius": option("waist radius"),
+        "beam_waist_before": option("waist before"),
+        "beam_waist_after": option("waist after"),
+        "beam_wavelength": option("wavelength"),
+        "beam_propagation_ratio": option("propagation ratio"),
+        "fibre_mode_field": option("mode field diameter"),
+        "fibre_at_image": option("at image", with_value=False),
+        "fibre_at_waist": option("at waist", with_value=False),
+        "fibre_after": option("after"),
+        "fibre_offset": option("offset"),
+        "fibre_tilt": option("tilt"),
+    }
+
+    def beam(self, meta, items):
+        return t.Beam(tuple(items), pos=_pos(meta))
+
+    def fibre(self, meta, items):
+        word, *options = items
+        return t.Fibre(tuple(options), str(word), pos=_pos(meta))
+
+    def clipping_limit(self, meta, items):
+        return t.BeamLimit("clipping", items[0], pos=_pos(meta))
+
+    def clearance_limit(self, meta, items):
+        return t.BeamLimit("clearance", items[0], pos=_pos(meta))
+
+    def beam_expect_after(self, meta, items):
+        quantity, distance, op, value, tolerance = items
+        return t.ExpectAfter(quantity, distance, op, value, tolerance, pos=_pos(meta))
+
+    def beam_report_after(self, meta, items):
+        return t.ReportAfter(items[0], items[1], pos=_pos(meta))
+
+    for name, method in table.items():
+        setattr(_Builder, name, v_args(meta=True)(method))
+    for method in (beam, fibre, clipping_limit, clearance_limit, beam_expect_after,
+                   beam_report_after):
+        setattr(_Builder, method.__name__, v_args(meta=True)(method))
+
+
+_beam_builders()
 _BUILDER = _Builder()

@@ -16,7 +16,7 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
-    "Sample", "FocusTolerance", "ReportRays", "ExpectRays",
+    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
@@ -152,12 +152,14 @@ class StartMedium(Statement):
 @node
 class ObjectAtInfinity(Statement):
     field_angle: Expr | None = None
+    height: Expr | None = None  # not meaningful at infinity: the interpreter says so
 
 
 @node
 class ObjectBefore(Statement):
     distance: Expr
     height: Expr | None = None
+    field_angle: Expr | None = None  # not meaningful for a near object: the interpreter says so
 
 
 @node
@@ -364,6 +366,15 @@ class ReportRays(Statement):
 
 
 @node
+class ReportAtField(Statement):
+    """`report Q at field F [at wavelength W]`: one ray quantity where `expect` takes it."""
+
+    quantity: Quantity
+    field: Expr
+    wavelength: Node | None = None
+
+
+@node
 class ExpectRays(Statement):
     """`expect Q at field F [at wavelength W] < V` or `expect Q < V depth of focus` (scale
     'depth of focus'); `wavelength` is a WavelengthRef (grammar/materials.lark) or None."""
@@ -382,7 +393,7 @@ class ExpectRays(Statement):
 
 @node
 class MediumModel(Statement):
-    """A medium with a dispersion model; kind is 'model glass' (values: index, Abbe number),
+    """A medium with a dispersion model; kind is 'nd and abbe number' (values: index, Abbe number),
     'glass code' (code: the digits as written), 'sellmeier' (pairs of B and λᵢ, or of B and C
     when squared), 'cauchy' (values: the coefficients) or 'table' (pairs of λ and n)."""
 
@@ -561,3 +572,62 @@ class ImageTilt(Statement):
 
     angle: Expr
     axis: str
+
+
+# --- laser beams and fibres (grammar/beams.lark) ----------------------------------------------
+
+__all__ += ["BeamOption", "Beam", "Fibre", "BeamLimit", "ExpectAfter", "ReportAfter"]
+
+
+@node
+class BeamOption(Node):
+    """One option of `beam` or `fibre`, as written: kind is 'waist radius', 'waist before',
+    'waist after', 'wavelength', 'propagation ratio' (beam) or 'mode field diameter' (with
+    `at` its wavelength), 'at image', 'at waist', 'after', 'offset', 'tilt' (fibre)."""
+
+    kind: str
+    value: Expr | None = None
+    at: Expr | None = None
+
+
+@node
+class Beam(Statement):
+    """`beam waist radius W, waist D before, wavelength L[, propagation ratio M2]`."""
+
+    options: tuple[BeamOption, ...]
+
+
+@node
+class Fibre(Statement):
+    """`fibre mode field diameter D [at L], at image | at waist | D after[, offset X][, tilt A]`
+    (`word` keeps the spelling written: fibre or fiber)."""
+
+    options: tuple[BeamOption, ...]
+    word: str = "fibre"
+
+
+@node
+class BeamLimit(Statement):
+    """`clipping limit P %` or `clearance limit K beam diameters`."""
+
+    kind: str  # 'clipping' | 'clearance'
+    value: Expr
+
+
+@node
+class ExpectAfter(Statement):
+    """`expect QUANTITY at D after < V`: a beam quantity a distance after the last boundary."""
+
+    quantity: Quantity
+    distance: Expr
+    op: str
+    value: Expr
+    tolerance: Tolerance | None = None
+
+
+@node
+class ReportAfter(Statement):
+    """`report QUANTITY at D after`."""
+
+    quantity: Quantity
+    distance: Expr

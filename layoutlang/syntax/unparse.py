@@ -11,7 +11,7 @@ from typing import Callable, Iterable
 
 from . import tree as t
 
-__all__ = ["unparse", "unparse_statement", "expression_text", "UnparseError"]
+__all__ = ["unparse", "unparse_statement", "expression_text", "binding_level", "UnparseError"]
 
 
 class UnparseError(TypeError):
@@ -45,6 +45,12 @@ def _level(node: t.Expr) -> int:
     if isinstance(node, t.Negate):
         return _SIGNED
     return _ATOM
+
+
+def binding_level(node: t.Expr) -> int:
+    """How tightly an expression binds (higher binds tighter): text that replaces a
+    sub-expression needs parentheses when it binds more loosely than what it replaces."""
+    return _level(node)
 
 
 def _wrap(node: t.Expr, needed: int) -> str:
@@ -109,11 +115,17 @@ def _Stop(node: t.Stop) -> str:
 
 def _ObjectBefore(node: t.ObjectBefore) -> str:
     text = f"object {expression_text(node.distance)} before"
-    return text if node.height is None else text + f", height {expression_text(node.height)}"
+    return text + _object_options(node)
 
 
 def _ObjectAtInfinity(node: t.ObjectAtInfinity) -> str:
-    text = "object at infinity"
+    return "object at infinity" + _object_options(node)
+
+
+def _object_options(node) -> str:
+    text = ""
+    if node.height is not None:
+        text += f", height {expression_text(node.height)}"
     if node.field_angle is not None:
         text += f", field angle {expression_text(node.field_angle)}"
     return text
@@ -183,7 +195,7 @@ def _pairs(pairs) -> str:
 
 def _MediumModel(node: t.MediumModel) -> str:
     head = f"medium {node.name.text}"
-    if node.kind == "model glass":
+    if node.kind == "nd and abbe number":
         index, abbe = node.values
         text = f"{head} index {expression_text(index)}, abbe number {expression_text(abbe)}"
     elif node.kind == "glass code":
@@ -215,11 +227,20 @@ def _qualifier(q: t.Qualifier) -> str:
     refs = [_wavelength_ref(r) for r in q.wavelengths]
     if q.kind == "of":
         return f"of {q.medium.text}"
-    if q.kind == "at":
-        return f"at wavelength {refs[0]}"
+    if q.kind == "at":  # 'wavelength' is optional: written where the place is a wavelength
+        ref = q.wavelengths[0]
+        if ref.number is not None and ref.number.unit in ("nm", "um", "µm") or _is_line(ref):
+            return f"at wavelength {refs[0]}"
+        return f"at {refs[0]}"
     if q.kind == "between":
         return f"between {refs[0]} and {refs[1]}"
     return f"across {refs[0]}, {refs[1]} and {refs[2]}"
+
+
+def _is_line(ref: t.WavelengthRef) -> bool:
+    from ..materials.lines import SPECTRAL_LINES
+
+    return ref.name is not None and ref.name in SPECTRAL_LINES
 
 
 def _QualifiedExpect(node: t.QualifiedExpect) -> str:
@@ -280,6 +301,25 @@ def _Prism(node: t.Prism) -> str:
     return text
 
 
+# laser beams and fibres (grammar/beams.lark)
+def _beam_option(option: t.BeamOption) -> str:
+    kind = option.kind
+    if kind in ("at image", "at waist"):
+        return kind
+    if kind in ("waist before", "waist after"):
+        return f"waist {expression_text(option.value)} {kind.split()[1]}"
+    if kind == "after":
+        return f"{expression_text(option.value)} after"
+    text = f"{kind} {expression_text(option.value)}"
+    return text if option.at is None else f"{text} at {expression_text(option.at)}"
+
+
+def _BeamLimit(node: t.BeamLimit) -> str:
+    if node.kind == "clipping":
+        return f"clipping limit {expression_text(node.value)}"
+    return f"clearance limit {expression_text(node.value)} beam diameters"
+
+
 _RULES: dict[str, Callable] = {
     "Title": lambda n: f'layout "{n.text}"',
     "Units": lambda n: f"units {n.unit.text}",
@@ -308,6 +348,8 @@ _RULES: dict[str, Callable] = {
     "Fold": _Fold,
     "Prism": _Prism,
     "ImageTilt": lambda n: f"tilt image plane by {expression_text(n.angle)} about {n.axis}",
+    "ReportAtField": lambda n: f"report {n.quantity.text} at field {expression_text(n.field)}"
+    + ("" if n.wavelength is None else f" at wavelength {_wavelength_ref(n.wavelength)}"),
     # materials and wavelengths
     "MediumModel": _MediumModel,
     "Surroundings": lambda n: f"layout in {n.environment}",
@@ -325,6 +367,13 @@ _RULES: dict[str, Callable] = {
     + f" to {_names(n.symbols)}",
     "ExpectSensitivity": lambda n: f"expect sensitivity of {n.quantity.text} to "
     f"{n.symbol.text} {n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    # laser beams and fibres
+    "Beam": lambda n: "beam " + ", ".join(_beam_option(o) for o in n.options),
+    "Fibre": lambda n: f"{n.word} " + ", ".join(_beam_option(o) for o in n.options),
+    "BeamLimit": _BeamLimit,
+    "ExpectAfter": lambda n: f"expect {n.quantity.text} at {expression_text(n.distance)} after "
+    f"{n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    "ReportAfter": lambda n: f"report {n.quantity.text} at {expression_text(n.distance)} after",
     # commands of the interactive session
     "Change": _Change,
     "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",
