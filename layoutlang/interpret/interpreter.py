@@ -15,7 +15,7 @@ from typing import Any
 
 from ..errors import LayoutFileError, LayoutNameError, LayoutUnitError
 from ..errors import LayoutError, LayoutValueError, Span
-from ..guard import as_arithmetic_error, guarded
+from ..guard import MAX_SURFACES, as_arithmetic_error, guarded
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion
 from ..syntax import tree as t
@@ -26,6 +26,7 @@ from .expressions import ExpressionEvaluator, NumericBackend
 from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
+from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
 from .tolerancestatements import ToleranceStatements
 from .buildstatements import SURFACE_QUANTITIES, BuildStatements
@@ -82,11 +83,10 @@ class Program:
 
 def load_file(path: str | Path) -> Program:
     """Read, parse and interpret a script file."""
+    from ..guard import read_script
+
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as error:
-        raise LayoutFileError(f"cannot read {path}: {getattr(error, 'strerror', None) or error}") from None
+    text = read_script(path)
     return interpret(parse(text, str(path)), base=path.parent)
 
 
@@ -103,7 +103,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements, ToleranceStatements):
+                   BuildStatements, PlaceStatements, ToleranceStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -407,6 +407,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
         self.remember_boundary(node)
+        if len(self.boundaries) >= MAX_SURFACES:
+            raise LayoutValueError(f"a layout has at most {MAX_SURFACES:,} surfaces",
+                                   self.span(node), hint="this limit keeps every report fast")
         self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
         self.current_medium = after
 
@@ -579,6 +582,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.placed_system(system)  # tilts, decenters, folds, prisms (placestatements.py)
         system = self.beam_system(system)  # the beam and fibre (beamstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
@@ -712,8 +716,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements,
-                ToleranceStatements,
+                BuildStatements, PlaceStatements, ToleranceStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
