@@ -23,6 +23,7 @@ from ..system import IDEAL, MIRROR, REFRACT, Boundary, ImageSpec, Medium, Object
 from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .raystatements import RayStatements, is_ray_quantity
+from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
 from .symbolstatements import SymbolicStatements
 from ..engines.raysettings import RaySettings
@@ -97,7 +98,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
     _Interpreter(script, base or Path.cwd()).run_statements()
 
 
-class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, SurfaceOptions):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -354,6 +355,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
     def statement_BoundaryStatement(self, node: t.BoundaryStatement) -> None:
         """surface [NAME] radius R | curvature C | flat [into MEDIUM][, clear diameter D]
         mirror [NAME] radius R | curvature C | flat[, clear diameter D]
+        (surface and mirror also take the options of surfaces.lark: conic constant K,
+        r4 coefficient A, q-type a0 A, q-type normalisation radius R, obscuration diameter D,
+        hole diameter D)
         lens [NAME] focal length F | power P[, clear diameter D]"""
         if self.current_medium is None:
             raise LayoutValueError(
@@ -393,7 +397,8 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
         if node.clear_diameter is not None:
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
-        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
+        shape = self.surface_fields(node, curvature, clear)
+        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear, **shape))
         self.current_medium = after
 
     def curvature(self, shape: t.Shape) -> Any:
@@ -676,7 +681,8 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, SymbolicStatements, MaterialStatements, _Interpreter)
+    for cls in (RayStatements, SymbolicStatements, MaterialStatements, SurfaceOptions,
+                _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
 }
