@@ -16,7 +16,7 @@ from typing import Any
 
 __all__ = [
     "Medium", "Boundary", "GroupPlacement", "ObjectSpec", "StopSpec", "ImageSpec", "Wavelength", "System",
-    "REFRACT", "MIRROR", "IDEAL",
+    "REFRACT", "MIRROR", "IDEAL", "BeamSpec", "FibreSpec",
 ]
 
 Number = Any  # float | numpy.ndarray | sympy.Expr
@@ -145,6 +145,33 @@ class ImageSpec:
 
 
 @dataclass(frozen=True)
+class BeamSpec:
+    """A Gaussian input beam (grammar/beams.lark): its 1/e² intensity waist radius, where the
+    waist lies (distance before the first vertex, negative when after it), its wavelength in
+    layout units (relative to the layout's surroundings, like `wavelengths`) and its beam
+    propagation ratio M² (1 for a pure Gaussian mode)."""
+
+    waist_radius: Number
+    waist_distance: Number
+    wavelength: Number
+    propagation_ratio: Number = 1.0
+
+
+@dataclass(frozen=True)
+class FibreSpec:
+    """A single-mode fibre receiving the beam: its mode-field diameter (1/e² intensity) at the
+    beam's wavelength, where its face is ('image': the image plane, 'waist': the beam's output
+    waist, 'after': `distance` after the last boundary), and its lateral offset and tilt (in
+    one plane, the tilt in radians)."""
+
+    mode_field_diameter: Number
+    place: str
+    distance: Number | None = None
+    offset: Number = 0.0
+    tilt: Number = 0.0
+
+
+@dataclass(frozen=True)
 class Wavelength:
     value: Number  # in the layout's length unit
     primary: bool = False
@@ -176,6 +203,8 @@ class System:
     title: str = ""
     units: str = "mm"
     environment: str = "standard air"  # or "vacuum": what indices and wavelengths are relative to
+    beam: BeamSpec | None = None  # a Gaussian input beam (engines/beams.py)
+    fibre: FibreSpec | None = None  # a fibre mode receiving the beam
     groups: tuple[Any, ...] = ()  # GroupPlacement: a placement applied to a run of boundaries
 
     @property

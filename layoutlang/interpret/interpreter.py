@@ -14,7 +14,8 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import LayoutFileError, LayoutNameError, LayoutUnitError
-from ..errors import LayoutValueError, Span
+from ..errors import LayoutError, LayoutValueError, Span
+from ..guard import as_arithmetic_error, guarded
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion
 from ..syntax import tree as t
@@ -22,6 +23,7 @@ from ..syntax.parser import parse
 from ..system import IDEAL, MIRROR, REFRACT, Boundary, ImageSpec, Medium, ObjectSpec
 from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
+from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
@@ -70,6 +72,7 @@ class Program:
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
+    beams: Any = None  # a beam script's BeamSettings (interpret/beamstatements.py), else None
 
     def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
         from ..notebook import program_html
@@ -87,6 +90,7 @@ def load_file(path: str | Path) -> Program:
     return interpret(parse(text, str(path)), base=path.parent)
 
 
+@guarded
 def interpret(script: t.Script, base: Path | None = None) -> Program:
     """Build the Program of a parsed script (`base` resolves `use "file"`)."""
     return _Interpreter(script, base or Path.cwd()).run()
@@ -98,7 +102,8 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
     _Interpreter(script, base or Path.cwd()).run_statements()
 
 
-class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, SurfaceOptions):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
+                   SurfaceOptions):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -237,6 +242,13 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Surfac
                     self.execute(statement)
                 except RecursionError:
                     raise LayoutValueError(TOO_DEEP, self.span(statement)) from None
+                except LayoutError:
+                    raise
+                except Exception as error:  # noqa: BLE001 - arithmetic said at its statement
+                    converted = as_arithmetic_error(error, span=self.span(statement))
+                    if converted is None:
+                        raise
+                    raise converted from None
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)
@@ -482,6 +494,8 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Surfac
         """report | report QUANTITY, QUANTITY, ..."""
         if self.report_chromatic(node):  # colour quantities (materialstatements.py)
             return
+        if self.report_beam(node):  # beam quantities (beamstatements.py)
+            return
         self.reports.append(tuple(self.quantity(q).name for q in node.quantities))
 
     def statement_Hazard(self, node: t.Hazard) -> None:
@@ -563,6 +577,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Surfac
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.beam_system(system)  # the beam and fibre (beamstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
 
@@ -576,10 +591,11 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Surfac
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
         return self.finish_symbolic(Program(
-            self.script.file, system, expectations, tuple(self.reports), tuple(self.hazards),
-            dict(self.names), rays=rays, ray_reports=self.ray_reports(),
-            ray_requests=ray_requests,
-            colour=self.colour_requests(system), warnings=self.material_warnings()))
+            self.script.file, system, expectations, tuple(self.reports),
+            self.beam_hazards(self.hazards), dict(self.names), rays=rays,
+            ray_reports=self.ray_reports(), ray_requests=ray_requests,
+            colour=self.colour_requests(system), warnings=self.material_warnings(),
+            beams=self.beam_settings(system)))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -623,6 +639,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Surfac
         return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
 
     def expectation(self, node: t.Expect) -> Expectation:
+        beam = self.beam_expectation(node)  # beam quantities (beamstatements.py)
+        if beam is not None:
+            return beam
         request = self.expect_request(node)  # colour quantities, `at wavelength F`
         if request is None and (isinstance(node, t.ExpectRays)
                                 or is_ray_quantity(node.quantity.text)):
@@ -681,7 +700,8 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, SymbolicStatements, MaterialStatements, SurfaceOptions,
+    for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
+                SurfaceOptions,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

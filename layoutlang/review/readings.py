@@ -132,9 +132,11 @@ def ray_readings(program: Program, results: FirstOrder, checked) -> Iterable[Rea
             yield _quantity("third order", program, results, name)
 
 
-#: Sections of the machine-readable report that the readers above cover (or that hold no
-#: quantities); every other section is read generically.
+#: Sections of the machine-readable report that the readers above cover, or that hold the
+#: prescription itself (boundaries, setting: the statement changes say those) or no
+#: quantities; every other section is read generically.
 _COVERED = frozenset({"file", "title", "units", "sign_convention", "cautions", "boundaries",
+                      "setting",
                       "first_order", "notes", "expectations", "colour", "rays",
                       "requested_rays"})
 

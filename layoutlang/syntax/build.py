@@ -523,4 +523,60 @@ def _symbolic_builders() -> None:
 
 
 _symbolic_builders()
+
+
+def _beam_builders() -> None:
+    """The builder methods of grammar/beams.lark (beam, fibre, limits, `at D after`)."""
+
+    def option(kind, with_value=True):
+        def build(self, meta, items):
+            values = [i for i in items if not isinstance(i, Token)]
+            value = values[0] if with_value and values else None
+            at = values[1] if len(values) > 1 else None
+            return t.BeamOption(kind, value, at, pos=_pos(meta))
+        build.__name__ = "beam_" + kind.replace(" ", "_")
+        return build
+
+    table = {
+        "beam_waist_radius": option("waist radius"),
+        "beam_waist_before": option("waist before"),
+        "beam_waist_after": option("waist after"),
+        "beam_wavelength": option("wavelength"),
+        "beam_propagation_ratio": option("propagation ratio"),
+        "fibre_mode_field": option("mode field diameter"),
+        "fibre_at_image": option("at image", with_value=False),
+        "fibre_at_waist": option("at waist", with_value=False),
+        "fibre_after": option("after"),
+        "fibre_offset": option("offset"),
+        "fibre_tilt": option("tilt"),
+    }
+
+    def beam(self, meta, items):
+        return t.Beam(tuple(items), pos=_pos(meta))
+
+    def fibre(self, meta, items):
+        word, *options = items
+        return t.Fibre(tuple(options), str(word), pos=_pos(meta))
+
+    def clipping_limit(self, meta, items):
+        return t.BeamLimit("clipping", items[0], pos=_pos(meta))
+
+    def clearance_limit(self, meta, items):
+        return t.BeamLimit("clearance", items[0], pos=_pos(meta))
+
+    def beam_expect_after(self, meta, items):
+        quantity, distance, op, value, tolerance = items
+        return t.ExpectAfter(quantity, distance, op, value, tolerance, pos=_pos(meta))
+
+    def beam_report_after(self, meta, items):
+        return t.ReportAfter(items[0], items[1], pos=_pos(meta))
+
+    for name, method in table.items():
+        setattr(_Builder, name, v_args(meta=True)(method))
+    for method in (beam, fibre, clipping_limit, clearance_limit, beam_expect_after,
+                   beam_report_after):
+        setattr(_Builder, method.__name__, v_args(meta=True)(method))
+
+
+_beam_builders()
 _BUILDER = _Builder()

@@ -526,3 +526,62 @@ class ExpectSensitivity(Statement):
     op: str
     value: Expr
     tolerance: Tolerance | None = None
+
+
+# --- laser beams and fibres (grammar/beams.lark) ----------------------------------------------
+
+__all__ += ["BeamOption", "Beam", "Fibre", "BeamLimit", "ExpectAfter", "ReportAfter"]
+
+
+@node
+class BeamOption(Node):
+    """One option of `beam` or `fibre`, as written: kind is 'waist radius', 'waist before',
+    'waist after', 'wavelength', 'propagation ratio' (beam) or 'mode field diameter' (with
+    `at` its wavelength), 'at image', 'at waist', 'after', 'offset', 'tilt' (fibre)."""
+
+    kind: str
+    value: Expr | None = None
+    at: Expr | None = None
+
+
+@node
+class Beam(Statement):
+    """`beam waist radius W, waist D before, wavelength L[, propagation ratio M2]`."""
+
+    options: tuple[BeamOption, ...]
+
+
+@node
+class Fibre(Statement):
+    """`fibre mode field diameter D [at L], at image | at waist | D after[, offset X][, tilt A]`
+    (`word` keeps the spelling written: fibre or fiber)."""
+
+    options: tuple[BeamOption, ...]
+    word: str = "fibre"
+
+
+@node
+class BeamLimit(Statement):
+    """`clipping limit P %` or `clearance limit K beam diameters`."""
+
+    kind: str  # 'clipping' | 'clearance'
+    value: Expr
+
+
+@node
+class ExpectAfter(Statement):
+    """`expect QUANTITY at D after < V`: a beam quantity a distance after the last boundary."""
+
+    quantity: Quantity
+    distance: Expr
+    op: str
+    value: Expr
+    tolerance: Tolerance | None = None
+
+
+@node
+class ReportAfter(Statement):
+    """`report QUANTITY at D after`."""
+
+    quantity: Quantity
+    distance: Expr

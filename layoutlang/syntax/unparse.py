@@ -229,11 +229,20 @@ def _qualifier(q: t.Qualifier) -> str:
     refs = [_wavelength_ref(r) for r in q.wavelengths]
     if q.kind == "of":
         return f"of {q.medium.text}"
-    if q.kind == "at":
-        return f"at wavelength {refs[0]}"
+    if q.kind == "at":  # 'wavelength' is optional: written where the place is a wavelength
+        ref = q.wavelengths[0]
+        if ref.number is not None and ref.number.unit in ("nm", "um", "µm") or _is_line(ref):
+            return f"at wavelength {refs[0]}"
+        return f"at {refs[0]}"
     if q.kind == "between":
         return f"between {refs[0]} and {refs[1]}"
     return f"across {refs[0]}, {refs[1]} and {refs[2]}"
+
+
+def _is_line(ref: t.WavelengthRef) -> bool:
+    from ..materials.lines import SPECTRAL_LINES
+
+    return ref.name is not None and ref.name in SPECTRAL_LINES
 
 
 def _QualifiedExpect(node: t.QualifiedExpect) -> str:
@@ -263,6 +272,25 @@ def _Solve(node: t.Solve) -> str:
     conditions = " and ".join(f"{c.quantity.text} = {expression_text(c.value)}"
                               for c in node.conditions)
     return f"solve {_names(node.unknowns)} so that {conditions}"
+
+
+# laser beams and fibres (grammar/beams.lark)
+def _beam_option(option: t.BeamOption) -> str:
+    kind = option.kind
+    if kind in ("at image", "at waist"):
+        return kind
+    if kind in ("waist before", "waist after"):
+        return f"waist {expression_text(option.value)} {kind.split()[1]}"
+    if kind == "after":
+        return f"{expression_text(option.value)} after"
+    text = f"{kind} {expression_text(option.value)}"
+    return text if option.at is None else f"{text} at {expression_text(option.at)}"
+
+
+def _BeamLimit(node: t.BeamLimit) -> str:
+    if node.kind == "clipping":
+        return f"clipping limit {expression_text(node.value)}"
+    return f"clearance limit {expression_text(node.value)} beam diameters"
 
 
 _RULES: dict[str, Callable] = {
@@ -307,6 +335,13 @@ _RULES: dict[str, Callable] = {
     + f" to {_names(n.symbols)}",
     "ExpectSensitivity": lambda n: f"expect sensitivity of {n.quantity.text} to "
     f"{n.symbol.text} {n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    # laser beams and fibres
+    "Beam": lambda n: "beam " + ", ".join(_beam_option(o) for o in n.options),
+    "Fibre": lambda n: f"{n.word} " + ", ".join(_beam_option(o) for o in n.options),
+    "BeamLimit": _BeamLimit,
+    "ExpectAfter": lambda n: f"expect {n.quantity.text} at {expression_text(n.distance)} after "
+    f"{n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    "ReportAfter": lambda n: f"report {n.quantity.text} at {expression_text(n.distance)} after",
     # commands of the interactive session
     "Change": _Change,
     "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",
