@@ -25,7 +25,7 @@ from typing import Any, Callable, TypeVar
 from .errors import LayoutError, LayoutValueError, Span
 
 __all__ = [
-    "LARGEST", "SMALLEST", "NOT_FINITE_REASON", "LayoutInternalError", "admissible",
+    "LARGEST", "SMALLEST", "SMALLEST_COEFFICIENT", "NOT_FINITE_REASON", "LayoutInternalError", "admissible",
     "is_finite", "finite_or_unavailable", "json_safe", "guarded", "unexpected_error",
     "quiet_numeric_warnings",
 ]
@@ -34,6 +34,10 @@ __all__ = [
 #: of them, which stays far inside the range of a double (about 1e308).
 LARGEST = 1e15
 SMALLEST = 1e-15
+#: Aspheric coefficients (r⁴ … r²⁰, in layout units) are small by nature — an r¹⁰ term of a
+#: telescope mirror in mm is about 1e-20 — and only ever multiply a power of r: they may go
+#: down to this magnitude (the interpreter asks for it where a coefficient is written).
+SMALLEST_COEFFICIENT = 1e-200
 
 NOT_FINITE_REASON = "cannot be computed: not a finite number"
 
@@ -44,7 +48,7 @@ class LayoutInternalError(LayoutError, RuntimeError):
     """Something went wrong inside layoutlang itself (a bug): said in words, exit status 2."""
 
 
-def admissible(value: Any) -> str | None:
+def admissible(value: Any, smallest: float = SMALLEST) -> str | None:
     """Why a number written in (or computed by) a script cannot be used, or None if it can.
 
     Works for floats and for exact sympy numbers (which may exceed a double's range); a value
@@ -57,8 +61,8 @@ def admissible(value: Any) -> str | None:
         return "this number is not defined (it is not a number)"
     if magnitude > LARGEST:
         return f"this number is too large (layoutlang works with magnitudes up to {LARGEST:g})"
-    if 0 < magnitude < SMALLEST:
-        return (f"this number is too small (layoutlang works with magnitudes from {SMALLEST:g}, "
+    if 0 < magnitude < smallest:
+        return (f"this number is too small (layoutlang works with magnitudes from {smallest:g}, "
                 "or exactly 0)")
     return None
 

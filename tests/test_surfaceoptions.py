@@ -30,6 +30,15 @@ def test_the_words_become_the_boundary_fields():
     assert not secondary.is_spherical and secondary.profile.form == "even asphere"
 
 
+def test_aspheric_coefficients_may_be_as_small_as_they_are_in_practice():
+    # an r10 term of a mirror in mm is of order 1e-20: below the guard's 1e-15 for other numbers
+    boundary = loads("start in air\nmirror m radius -800, r4 coefficient 1e-12, "
+                     "r10 coefficient -2.5e-21\n").system.boundaries[0]
+    assert boundary.even_terms[-1] == -2.5e-21
+    with pytest.raises(LayoutValueError, match="too small"):
+        loads("start in air\nmirror m radius -800, conic constant 1e-19\n")
+
+
 def test_q_type_terms_fill_the_missing_indices_with_zero():
     boundary = loads("start in air\nmedium g index 1.5\nsurface s radius 20 into g, "
                      "q-type a0 1e-3, q-type a2 -2e-4, q-type normalisation radius 8\n"

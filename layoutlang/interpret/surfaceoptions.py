@@ -12,6 +12,7 @@ from __future__ import annotations
 from typing import Any
 
 from ..errors import LayoutValueError
+from ..guard import SMALLEST_COEFFICIENT
 from ..syntax import tree as t
 
 __all__ = ["SurfaceOptions", "EVEN_POWERS"]
@@ -56,7 +57,7 @@ class SurfaceOptions:
         if even:
             top = max(even)
             fields["even_terms"] = tuple(
-                self.number(even[p], f"the r{p} coefficient") if p in even else 0.0
+                self.coefficient(even[p], f"the r{p} coefficient") if p in even else 0.0
                 for p in EVEN_POWERS if p <= top)
         if q and radius is None:
             raise LayoutValueError(
@@ -67,7 +68,7 @@ class SurfaceOptions:
                 "a Q-type normalisation radius without Q-type coefficients", self.span(radius),
                 expected="', q-type a0 1e-3' and further terms")
         if q:
-            fields["q_terms"] = tuple(self.number(q[m], f"the q-type a{m} coefficient")
+            fields["q_terms"] = tuple(self.coefficient(q[m], f"the q-type a{m} coefficient")
                                       if m in q else 0.0 for m in range(max(q) + 1))
             fields["q_radius"] = self.positive(
                 self.length(radius, "a normalisation radius"), radius, "a normalisation radius")
@@ -83,6 +84,11 @@ class SurfaceOptions:
                     f"({_text(diameter)} is not less than {_text(clear)})", self.span(value))
             fields[field] = diameter
         return fields
+
+    def coefficient(self, node: t.Expr, what: str) -> Any:
+        """A plain number that may be as small as aspheric coefficients are."""
+        with self.evaluator.small_numbers(SMALLEST_COEFFICIENT):
+            return self.number(node, what)
 
 
 def _is_zero(value: Any) -> bool:

@@ -36,14 +36,6 @@ EXAMPLES: dict[str, list[str]] = {
         "mirror m\n",
     ],
     "a gap needs a length, e.g. 'gap 5.2'": ["gap\n"],
-    # surfaces.lark: shape and aperture options standing on their own line
-    "a conic constant, aspheric coefficients, an obscuration or a hole belong to a surface or "
-    "mirror: write them after its shape, e.g. 'surface front radius 12 into glass, conic "
-    "constant -0.6, r4 coefficient 2e-5'": [
-        "r4 coefficient 1e-5\n",
-        "r6 coefficient 1e-5\n",
-        "q-type a0 1e-3\n",
-    ],
     # exact rays (grammar/rays.lark)
     "say which field: 'at field 1', 'at field 0.7' or 'at field 3 deg'": [
         "expect rms spot radius at field < 0.02\n",

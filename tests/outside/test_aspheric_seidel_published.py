@@ -91,7 +91,8 @@ def _transverse(kappa: float, a4: float, height: float):
 
 
 @settings(max_examples=25, deadline=None)
-@given(kappa=st.floats(-3.0, 2.0), a4=st.floats(-2e-5, 2e-5))
+@given(kappa=st.floats(-3.0, 2.0).filter(lambda k: k == 0 or abs(k) > 1e-6),
+       a4=st.one_of(st.just(0.0), st.floats(1e-9, 2e-5), st.floats(-2e-5, -1e-9)))
 def test_the_conic_and_r4_contribution_matches_the_exact_trace_as_the_aperture_closes(kappa, a4):
     ratios = []
     for height in (0.4, 0.1):
