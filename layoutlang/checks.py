@@ -14,7 +14,7 @@ from .testing import Outcome, compare
 from .guard import guarded
 
 __all__ = ["CheckResult", "QuantityReading", "check_program", "evaluate_program", "read_quantity",
-           "display_unit", "to_display", "beam_label"]
+           "display_unit", "to_display", "surface_value", "beam_label"]
 
 
 @dataclass(frozen=True)
@@ -45,6 +45,16 @@ def to_display(value, kind: str, units: str):
     if kind == ANGLE and isinstance(value, (int, float)):
         return value * 1000.0
     return value
+
+
+def surface_value(request, system, results):
+    """`edge thickness of NAME` or `sag of NAME` (engines/buildable.py)."""
+    from .engines.buildable import edge_thickness, surface_sag
+
+    i = system.boundary_index(request.surface)
+    if request.name == "edge thickness":
+        return edge_thickness(system, results, i)
+    return surface_sag(system, results, i)
 
 
 def beam_label(name: str, place) -> str:
@@ -125,6 +135,9 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
 
         value = beam_value(program.system, quantity, request)
         label = beam_label(quantity, request)
+    elif request is not None and hasattr(request, "surface"):  # edge thickness of NAME
+        value = surface_value(request, program.system, results)
+        label = request.describe()
     elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
         from .engines.chromatic import evaluate
 

@@ -334,3 +334,39 @@ def test_the_session_shows_colour_and_ray_changes_too(tmp_path) -> None:
     out = Workspace.open(script).run("change front radius to 66")
     assert "axial colour between F and C" in out and "→" in out
     assert "now     FAILS (was holds): expect axial colour between F and C" in out
+
+
+def test_a_symbolic_scripts_closed_forms_and_sensitivities_are_compared(repo, capsys) -> None:
+    source = Path(__file__).parents[1] / "examples" / "symbolic_thick_lens.lay"
+    text = source.read_text(encoding="utf-8")
+    (repo / "thick.lay").write_text(text, encoding="utf-8")
+    git(repo, "add", "thick.lay")
+    git(repo, "commit", "-q", "-m", "thick")
+    # a nominal value changes numbers, not the closed forms
+    (repo / "thick.lay").write_text(text.replace("R2 = -60", "R2 = -50"), encoding="utf-8")
+    _, data = compare_json(capsys, "HEAD:thick.lay", "thick.lay")
+    parts = {q["part"] for q in data["quantities"]}
+    assert "closed forms" not in parts and "sensitivities" in parts
+    # the layout's structure changes the closed forms
+    (repo / "thick.lay").write_text(text.replace("radius R2 into air", "radius 2*R2 into air"),
+                                    encoding="utf-8")
+    _, data = compare_json(capsys, "HEAD:thick.lay", "thick.lay")
+    lensmaker = quantity(data, "lensmaker equation")
+    assert lensmaker["part"] == "closed forms" and "2*R2" in lensmaker["after"]["text"]
+    assert "2*R2" not in lensmaker["before"]["text"]
+
+
+EXAMPLES = sorted((Path(__file__).parents[1] / "examples").glob("*.lay"))
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.stem)
+def test_every_example_against_itself_and_against_another(path, capsys) -> None:
+    """Nothing to report against itself; against an unrelated layout, a full review in every
+    format with no error."""
+    status, out, _ = compare(capsys, "--json", str(path), str(path))
+    data = json.loads(out)
+    assert status == 0 and data["statements"] == data["quantities"] == data["expectations"] == []
+    other = EXAMPLES[(EXAMPLES.index(path) + 1) % len(EXAMPLES)]
+    for shape in ((), ("--markdown",), ("--json",)):
+        status, out, err = compare(capsys, *shape, str(other), str(path))
+        assert status in (0, 1) and out and "error" not in err

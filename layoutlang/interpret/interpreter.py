@@ -28,6 +28,7 @@ from .raystatements import RayStatements, is_ray_quantity
 from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
 from .symbolstatements import SymbolicStatements
+from .buildstatements import SURFACE_QUANTITIES, BuildStatements
 from ..engines.raysettings import RaySettings
 
 __all__ = ["Expectation", "Program", "interpret", "check_statements", "load_file",
@@ -69,15 +70,13 @@ class Program:
     rays: RaySettings = RaySettings()  # what `report exact rays` samples (raystatements.py)
     ray_reports: tuple[str, ...] = ()  # 'exact rays', 'seidel sums', in script order
     ray_requests: tuple = ()  # raysettings.RayRequest: `report Q at field F [at wavelength W]`
+    surface_requests: tuple = ()  # buildable.SurfaceRequest: `report edge thickness of NAME`
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
     beams: Any = None  # a beam script's BeamSettings (interpret/beamstatements.py), else None
-
-    def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
-        from ..notebook import program_html
-
-        return program_html(self)
+    # no display methods here: the notebook front end registers how a Program shows
+    # (layoutlang.notebook.register), so interpreting never pulls in a renderer
 
 
 def load_file(path: str | Path) -> Program:
@@ -103,7 +102,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   SurfaceOptions):
+                   BuildStatements, SurfaceOptions):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -410,6 +409,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
         shape = self.surface_fields(node, curvature, clear)
+        self.remember_boundary(node)
         self.boundaries.append(Boundary(name, curvature, after, kind, power, clear, **shape))
         self.current_medium = after
 
@@ -496,6 +496,11 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             return
         if self.report_beam(node):  # beam quantities (beamstatements.py)
             return
+        for quantity in node.quantities:
+            if self.quantity(quantity).name in SURFACE_QUANTITIES:
+                raise LayoutValueError(
+                    f"say which surface: 'report {self.quantity(quantity).name} of front'",
+                    self.span(quantity))
         self.reports.append(tuple(self.quantity(q).name for q in node.quantities))
 
     def statement_Hazard(self, node: t.Hazard) -> None:
@@ -590,12 +595,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         expectations = tuple(expectations)
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
-        return self.finish_symbolic(Program(
+        return self.check_buildable(self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports),
             self.beam_hazards(self.hazards), dict(self.names), rays=rays,
             ray_reports=self.ray_reports(), ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
-            beams=self.beam_settings(system)))
+            beams=self.beam_settings(system), surface_requests=self.surface_reports(system))))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -642,7 +647,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         beam = self.beam_expectation(node)  # beam quantities (beamstatements.py)
         if beam is not None:
             return beam
-        request = self.expect_request(node)  # colour quantities, `at wavelength F`
+        if self.quantity(node.quantity).name in SURFACE_QUANTITIES:  # edge thickness of NAME
+            request = self.surface_request(self.quantity(node.quantity).name,
+                                           getattr(node, "qualifiers", ()), node,
+                                           self._materials()["system"])
+        else:
+            request = self.expect_request(node)  # colour quantities, `at wavelength F`
         if request is None and (isinstance(node, t.ExpectRays)
                                 or is_ray_quantity(node.quantity.text)):
             return self.ray_expectation(node)
@@ -701,7 +711,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                SurfaceOptions,
+                BuildStatements, SurfaceOptions,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

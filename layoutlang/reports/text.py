@@ -281,6 +281,13 @@ def requested_blocks(program: Program, results: FirstOrder, colour: bool | None 
                 rows = requested_ray_rows(program, results, names)
                 if rows:
                     out.append(Table(rows, header=False))
+    if getattr(program, "surface_requests", ()):  # `report edge thickness of NAME`
+        from ..checks import surface_value
+
+        requests = program.surface_requests
+        out.append(Heading("requested: " + ", ".join(r.describe() for r in requests)))
+        out.append(Table([[r.describe(), describe_value(r.name, surface_value(
+            r, system, results), system.units)] for r in requests], header=False))
     if program.ray_requests:  # `report Q at field F` (reports/rays.py)
         from .rays import ray_request_blocks
 
