@@ -27,6 +27,7 @@ from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
+from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
 from .buildstatements import SURFACE_QUANTITIES, BuildStatements
 from ..engines.raysettings import RaySettings
@@ -102,7 +103,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements, SurfaceOptions):
+                   BuildStatements, PlaceStatements, SurfaceOptions):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -582,6 +583,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.placed_system(system)  # tilts, decenters, folds, prisms (placestatements.py)
         system = self.beam_system(system)  # the beam and fibre (beamstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
@@ -711,7 +713,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements, SurfaceOptions,
+                BuildStatements, PlaceStatements, SurfaceOptions,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
