@@ -139,9 +139,11 @@ class StopSpec:
 @dataclass(frozen=True)
 class ImageSpec:
     """The image plane: at the paraxial focus (distance None) or a fixed distance after the
-    last boundary along the path."""
+    last boundary along the path; `at_infinity` when the script states the output is
+    collimated (`image at infinity`, checked against the paraxial image)."""
 
     distance: Number | None = None
+    at_infinity: bool = False
 
 
 @dataclass(frozen=True)
