@@ -74,11 +74,8 @@ class Program:
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
     beams: Any = None  # a beam script's BeamSettings (interpret/beamstatements.py), else None
-
-    def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
-        from ..notebook import program_html
-
-        return program_html(self)
+    # no display methods here: the notebook front end registers how a Program shows
+    # (layoutlang.notebook.register), so interpreting never pulls in a renderer
 
 
 def load_file(path: str | Path) -> Program:
