@@ -26,6 +26,7 @@ from .expressions import ExpressionEvaluator, NumericBackend
 from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
+from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
 from .buildstatements import SURFACE_QUANTITIES, BuildStatements
 from ..engines.raysettings import RaySettings
@@ -101,7 +102,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements):
+                   BuildStatements, PlaceStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -459,7 +460,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.distance is not None:
             self._fix_units(node)
             distance = self.length(node.distance, "the image distance")
-        self.image, self.image_node = ImageSpec(distance, node.at_infinity), node
+        self.image, self.image_node = ImageSpec(distance, at_infinity=node.at_infinity), node
         self.image_context = (self.file, self.lines)
 
     def statement_ExpectAtInfinity(self, node: t.ExpectAtInfinity) -> None:
@@ -606,6 +607,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.placed_system(system)  # tilts, decenters, folds, prisms (placestatements.py)
         system = self.beam_system(system)  # the beam and fibre (beamstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
@@ -741,7 +743,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements,
+                BuildStatements, PlaceStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
