@@ -25,6 +25,7 @@ from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
+from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
 from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
@@ -103,7 +104,8 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements, PlaceStatements, ToleranceStatements):
+                   BuildStatements, PlaceStatements, SurfaceOptions,
+                   ToleranceStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -367,6 +369,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
     def statement_BoundaryStatement(self, node: t.BoundaryStatement) -> None:
         """surface [NAME] radius R | curvature C | flat [into MEDIUM][, clear diameter D]
         mirror [NAME] radius R | curvature C | flat[, clear diameter D]
+        (surface and mirror also take the options of surfaces.lark: conic constant K,
+        r4 coefficient A, q-type a0 A, q-type normalisation radius R, obscuration diameter D,
+        hole diameter D)
         lens [NAME] focal length F | power P[, clear diameter D]"""
         if self.current_medium is None:
             raise LayoutValueError(
@@ -406,11 +411,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.clear_diameter is not None:
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
+        shape = self.surface_fields(node, curvature, clear)
         self.remember_boundary(node)
         if len(self.boundaries) >= MAX_SURFACES:
             raise LayoutValueError(f"a layout has at most {MAX_SURFACES:,} surfaces",
                                    self.span(node), hint="this limit keeps every report fast")
-        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
+        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear, **shape))
         self.current_medium = after
 
     def curvature(self, shape: t.Shape) -> Any:
@@ -464,7 +470,36 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.distance is not None:
             self._fix_units(node)
             distance = self.length(node.distance, "the image distance")
-        self.image, self.image_node = ImageSpec(distance), node
+        self.image, self.image_node = ImageSpec(distance, at_infinity=node.at_infinity), node
+        self.image_context = (self.file, self.lines)
+
+    def statement_ExpectAtInfinity(self, node: t.ExpectAtInfinity) -> None:
+        """expect image at infinity"""
+        if node.quantity.text != "image":
+            raise LayoutValueError(
+                f"only the image can be expected at infinity, not the {node.quantity.text}",
+                self.span(node.quantity), expected="'expect image at infinity'")
+        self.expect_nodes.append((node, (self.file, self.lines)))
+
+    def check_image_at_infinity(self, program: Program) -> None:
+        """`image at infinity` states the output is collimated: refuse it when it is not."""
+        if not program.system.image.at_infinity or program.symbolic is not None:
+            return
+        from ..engines.firstorder import Unavailable, first_order
+
+        value = first_order(program.system)["image distance"]
+        if isinstance(value, Unavailable):
+            return
+        from ..testing import format_number
+
+        self.file, self.lines = self.image_context
+        side = "after" if value >= 0 else "before"
+        raise LayoutValueError(
+            f"the image is not at infinity: the paraxial image lies "
+            f"{format_number(abs(value))} {program.system.units} {side} the last boundary",
+            self.span(self.image_node), expected="a layout whose output is collimated",
+            hint="place the object at the front focal point (or make the layout afocal), "
+                 "or write 'image at focus'")
 
     def statement_Wavelengths(self, node: t.Wavelengths) -> None:
         """wavelengths W [primary], W, ..."""
@@ -597,13 +632,15 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
         tolerances = self.tolerance_setup(system)  # tolerancestatements.py
-        return self.check_buildable(self.finish_symbolic(Program(
+        program = self.check_buildable(self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports),
             self.beam_hazards(self.hazards), dict(self.names), rays=rays,
             ray_reports=self.ray_reports(), ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
             beams=self.beam_settings(system), surface_requests=self.surface_reports(system),
             tolerances=tolerances)))
+        self.check_image_at_infinity(program)
+        return program
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -649,6 +686,10 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
     def expectation(self, node: t.Expect) -> Expectation:
         if isinstance(node, t.ExpectYield):  # tolerancestatements.py
             return self.yield_expectation(node)
+        if isinstance(node, t.ExpectAtInfinity):
+            span = self.span(node)
+            return Expectation("image distance", LENGTH, "at infinity", 0.0, None, False, span,
+                               span.line_text.strip(), label="image")
         beam = self.beam_expectation(node)  # beam quantities (beamstatements.py)
         if beam is not None:
             return beam
@@ -716,7 +757,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements, PlaceStatements, ToleranceStatements,
+                BuildStatements, PlaceStatements, SurfaceOptions, ToleranceStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

@@ -16,7 +16,7 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
-    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
+    "ExpectAtInfinity", "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
@@ -181,6 +181,10 @@ class BoundaryStatement(Statement):
     strength_kind: str | None = None  # lens only: 'focal length' | 'power'
     strength: Expr | None = None
     clear_diameter: Expr | None = None
+    # surfaces.lark: ('conic constant', expr), ('r4 coefficient', expr), ('q-type a0', expr),
+    # ('q-type normalisation radius', expr), ('obscuration diameter', expr),
+    # ('hole diameter', expr), in written order
+    surface_options: tuple[tuple[str, Expr], ...] = ()
 
 
 @node
@@ -202,6 +206,14 @@ class Stop(Statement):
 @node
 class Image(Statement):
     distance: Expr | None = None  # None: at the paraxial focus
+    at_infinity: bool = False  # `image at infinity`: the output is stated to be collimated
+
+
+@node
+class ExpectAtInfinity(Statement):
+    """`expect image at infinity`: the paraxial output is collimated."""
+
+    quantity: Quantity
 
 
 @node

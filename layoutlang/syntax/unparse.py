@@ -102,6 +102,8 @@ def _BoundaryStatement(node: t.BoundaryStatement) -> str:
     text = " ".join(parts)
     if node.clear_diameter is not None:
         text += f", clear diameter {expression_text(node.clear_diameter)}"
+    for key, value in node.surface_options:
+        text += f", {key} {expression_text(value)}"
     return text
 
 
@@ -346,8 +348,9 @@ _RULES: dict[str, Callable] = {
     "BoundaryStatement": _BoundaryStatement,
     "Gap": lambda n: f"gap {expression_text(n.length)}",
     "Stop": _Stop,
-    "Image": lambda n: "image at focus" if n.distance is None
-    else f"image {expression_text(n.distance)} after",
+    "Image": lambda n: "image at infinity" if n.at_infinity else "image at focus"
+    if n.distance is None else f"image {expression_text(n.distance)} after",
+    "ExpectAtInfinity": lambda n: f"expect {n.quantity.text} at infinity",
     "Wavelengths": _Wavelengths,
     "Expect": _Expect,
     "Report": _Report,
