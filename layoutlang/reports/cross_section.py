@@ -23,8 +23,8 @@ from ..engines.paraxial import TRANSFER, Step
 from ..errors import LayoutError, LayoutValueError
 from ..system import IDEAL, MIRROR, REFRACT, System
 
-__all__ = ["Profile", "Element", "RayPath", "CrossSection", "cross_section", "sag", "FIELDS",
-           "PUPILS", "FAR_IMAGE"]
+__all__ = ["Profile", "Element", "RayPath", "BeamEnvelope", "CrossSection", "cross_section",
+           "sag", "beam_envelope", "FIELDS", "PUPILS", "FAR_IMAGE"]
 
 #: Extra room beyond the ray bundle when no clear diameter is given (the glass is never cut
 #: exactly at the ray): common practice in drawings, the value is ours.
@@ -129,6 +129,16 @@ def _bundles(has_field: bool) -> list[tuple[float, float]]:
 
 
 @dataclass(frozen=True)
+class BeamEnvelope:
+    """The Gaussian beam's 1/e² radius along the path, in global coordinates (a mirror folds
+    it back like the rays), and its waists as (z, radius, words)."""
+
+    z: tuple[float, ...]
+    radius: tuple[float, ...]
+    waists: tuple[tuple[float, float, str], ...] = ()
+
+
+@dataclass(frozen=True)
 class CrossSection:
     """Everything a drawing shows, in global coordinates."""
 
@@ -143,6 +153,7 @@ class CrossSection:
     notes: list[str] = field(default_factory=list)
     #: the field fractions of the drawn bundles (the legend names them)
     fields: tuple[float, ...] = ()
+    beam: BeamEnvelope | None = None  # a layout with a Gaussian beam
 
     def extent(self) -> tuple[float, float, float]:
         """(z min, z max, largest |y|) of everything drawn."""
@@ -155,6 +166,9 @@ class CrossSection:
             if item is not None:
                 zs.append(item[0])
                 ys.append(abs(item[1]))
+        if self.beam is not None:
+            zs.extend((min(self.beam.z), max(self.beam.z)))
+            ys.append(max(self.beam.radius))
         return min(zs), max(zs), max(ys) if ys else 1.0
 
 
@@ -199,6 +213,8 @@ def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | No
     n0 = system.indices()[0]
     obj = system.object
     object_steps = [] if obj.at_infinity else [Step(TRANSFER, float(obj.distance) / n0)]
+    if system.stop is None and system.beam is not None:  # the beam is drawn instead
+        return None, None, notes
     if system.stop is None:
         first = system.boundaries[0]
         radius = float(first.clear_diameter) / 2 if first.clear_diameter is not None else None
@@ -273,6 +289,11 @@ def _finite(section: CrossSection) -> CrossSection:
     for name in ("stop", "image", "object_plane"):
         value = getattr(section, name)
         parts[name] = value if value is None or finite(*value) else None
+    beam = section.beam
+    if beam is not None and not finite(*beam.z, *beam.radius):
+        parts["beam"] = None
+        notes.append("the beam is not drawn: its size leaves the range of numbers a drawing "
+                     "can show")
     section = replace(section, rays=rays, notes=notes, **parts)
     z_min, z_max, y_max = section.extent()
     span = z_max - z_min
@@ -429,8 +450,82 @@ def _cross_section(system: System, results: FirstOrder | None = None,
             stop_z = profiles[system.stop.after].z_at(radius)
         stop = (stop_z, radius)
     fields = tuple(sorted({r.field for r in rays}))
+    beam = None
+    if system.beam is not None:
+        beam = beam_envelope(system, length_scale, lead, notes)
     return CrossSection(system.title, system.units, profiles, elements, rays, stop, image,
-                        object_plane, list(dict.fromkeys(notes)), fields)
+                        object_plane, list(dict.fromkeys(notes)), fields, beam)
+
+
+def _micro(value: float, units: str) -> str:
+    """A beam radius in words: in µm when under a millimetre, else in the layout's units."""
+    from ..measure import LENGTH_UNITS
+    from ..testing import format_number
+
+    mm = value * LENGTH_UNITS[units]
+    if mm < 1:
+        return f"{format_number(mm * 1000, 3)} µm"
+    return f"{format_number(value, 3)} {units}"
+
+
+def beam_envelope(system: System, length_scale: float, lead: float,
+                  notes: list[str]) -> BeamEnvelope | None:
+    """The beam's envelope from its input waist (when near enough upstream) to its output
+    waist, the fibre face or the image plane (when near enough downstream), waists marked."""
+    from ..engines.beams import BeamPropagation
+
+    beam = BeamPropagation(system)
+    if beam.problem() is not None:
+        notes.append(f"the beam is not drawn: {beam.problem()}")
+        return None
+    vertices = _vertices(system)
+    senses = system.directions()
+    reach = 3 * max(length_scale, lead)
+    waist_before = float(system.beam.waist_distance)
+    before = waist_before if 0 < waist_before <= reach else lead
+    if waist_before > reach:
+        notes.append("the beam's input waist is far upstream: the beam is cut short before "
+                     "the layout")
+    out = beam.output()
+    ends = [float(out.waist_position)]
+    if system.fibre is not None:
+        face = beam.fibre_face()
+        if not isinstance(face, Unavailable):
+            ends.append(float(face))
+    plane = beam.image_plane()
+    if not isinstance(plane, Unavailable):
+        ends.append(float(plane))
+    ends = [e for e in ends if 0 < e <= reach]
+    after = 1.15 * max(ends) if ends else lead
+    points = beam.envelope(before, after)
+
+    def z_of(space: int, distance: float) -> float:
+        if space == 0:
+            return vertices[0] + distance
+        return vertices[space - 1] + senses[space] * distance
+
+    units = system.units
+    waists = []
+    if 0 < waist_before <= reach:
+        waists.append((z_of(0, -waist_before), float(system.beam.waist_radius),
+                       f"input waist {_micro(float(system.beam.waist_radius), units)}"))
+    for i, gap in enumerate(system.gaps):
+        inside = float(beam.waist_in_space(i))
+        if 0 < inside < float(gap):
+            a, b, c, d = beam.matrix_to_boundary(i)
+            radius = math.sqrt(float(beam.waist_squared) / float(
+                paraxial.gaussian.waist_denominator(a, b, c, d, beam.confocal)))
+            waists.append((z_of(i + 1, inside), radius, f"waist {_micro(radius, units)}"))
+    if 0 < out.waist_position <= after:
+        waists.append((z_of(len(system.boundaries), float(out.waist_position)),
+                       float(out.waist_radius),
+                       f"output waist {_micro(float(out.waist_radius), units)}"))
+    elif out.waist_position <= 0:
+        notes.append("the output waist is virtual (upstream of the last boundary): not marked")
+    else:
+        notes.append("the output waist lies beyond the drawing: see the report")
+    return BeamEnvelope(tuple(z_of(p.space, p.distance) for p in points),
+                        tuple(p.radius for p in points), tuple(waists))
 
 
 def _meeting_faces(system: System, profiles: list[Profile]) -> list[Profile]:
@@ -519,7 +614,7 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
             for j in range(len(pupils)):
                 if not alive[j]:
                     continue
-                if rays.status[j] != realrays.OK or not math.isfinite(float(rays.y[j])):
+                if rays.status[j] in realrays.LOST or not math.isfinite(float(rays.y[j])):
                     alive[j] = False
                     words = realrays.STATUS_WORDS.get(int(rays.status[j]), "lost")
                     key = (step.name, words)
