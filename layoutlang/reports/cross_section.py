@@ -452,7 +452,9 @@ def _cross_section(system: System, results: FirstOrder | None = None,
     fields = tuple(sorted({r.field for r in rays}))
     beam = None
     if system.beam is not None:
-        beam = beam_envelope(system, length_scale, lead, notes)
+        # the beam has its own reach (its waists), whatever the rays' image plane does
+        beam_scale = span if isinstance(plane, Unavailable) else max(span, abs(float(plane)))
+        beam = beam_envelope(system, beam_scale, lead, notes)
     return CrossSection(system.title, system.units, profiles, elements, rays, stop, image,
                         object_plane, list(dict.fromkeys(notes)), fields, beam)
 
