@@ -610,9 +610,9 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
                 ys[k].append(float(start.y[k]))
         alive = np.ones(len(pupils), dtype=bool)
         lost: dict[tuple[str, str], int] = {}
-        rays = start
-        for k, step in enumerate(geo.steps):
-            rays = realrays.trace(start.copy(), geo, indices, geo.steps[: k + 1])
+        rays = start.copy()
+        for k, step in enumerate(geo.steps):  # each step continues from the last (linear)
+            rays = realrays.trace(rays, geo, indices, geo.steps[k: k + 1])
             for j in range(len(pupils)):
                 if not alive[j]:
                     continue
