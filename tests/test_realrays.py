@@ -153,3 +153,44 @@ def test_real_rays_converge_to_the_paraxial_ray_as_the_height_goes_to_zero(radii
         errors.append(abs(y_real - y_par) / scale + abs(slope_real - slope_par) / scale)
     # third order: the difference falls at least as h² relative to h
     assert errors[1] <= errors[0] * 0.02 + 1e-12
+
+
+# --- optical path length -----------------------------------------------------------------
+
+
+def test_optical_path_from_a_mirrors_centre_of_curvature_back_to_it_is_twice_the_radius():
+    # every ray from the centre of curvature meets the sphere normally and returns through the
+    # centre (common practice; Fermat's principle): the optical path is 2 R for every ray
+    system = _system("start in air\nmirror radius -100\ngap 100\nsurface back flat")
+    angles = np.radians(np.linspace(-20.0, 20.0, 9))
+    rays = realrays.Rays.start(0.0, 0.0, -100.0, 0.0, np.sin(angles), np.cos(angles))
+    realrays.trace(rays, realrays.geometry(system), system.indices())
+    assert rays.ok.all()
+    np.testing.assert_allclose(rays.opl, 200.0, rtol=1e-13)
+    np.testing.assert_allclose(rays.y, 0.0, atol=1e-11)
+
+
+def test_optical_path_through_a_plate_is_n_times_the_tilted_thickness():
+    # a plate of thickness t and index n: the path inside is n t / cos θ' with
+    # sin θ = n sin θ' (Snell's law; common practice), plus the air paths before and after
+    n, t = 1.5, 4.0
+    system = _system(f"medium glass index {n}\nstart in air\nsurface a flat into glass\n"
+                     f"gap {t}\nsurface b flat into air\ngap 3\nsurface c flat")
+    theta = np.radians([0.0, 10.0, 30.0])
+    rays = realrays.Rays.start(0.0, 0.0, -2.0, 0.0, np.sin(theta), np.cos(theta))
+    realrays.trace(rays, realrays.geometry(system), system.indices())
+    inner = np.arcsin(np.sin(theta) / n)
+    expected = 2.0 / np.cos(theta) + n * t / np.cos(inner) + 3.0 / np.cos(theta)
+    np.testing.assert_allclose(rays.opl, expected, rtol=1e-14)
+
+
+def test_optical_path_of_an_ideal_lens_makes_a_plane_wave_a_spherical_one():
+    # after an ideal lens of focal length f, every ray of a plane wave reaches the focus with
+    # the same optical path (the lens model's phase; Fermat's principle)
+    system = _system("start in air\nlens focal length 50\ngap 50\nsurface focus flat")
+    heights = np.linspace(-10.0, 10.0, 7)
+    rays = realrays.Rays.start(0.0, heights, -5.0, 0.0, 0.0, 1.0)
+    realrays.trace(rays, realrays.geometry(system), system.indices())
+    np.testing.assert_allclose(rays.y, 0.0, atol=1e-12)
+    np.testing.assert_allclose(rays.opl, rays.opl[3], rtol=1e-14)
+    assert rays.opl[3] == pytest.approx(55.0)

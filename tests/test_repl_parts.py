@@ -73,6 +73,26 @@ def test_completion_continues_a_quantity_of_several_words() -> None:
     assert "front principal point" in completions("expect front p")
 
 
+def test_completion_offers_only_media_after_into() -> None:
+    completer = LayoutCompleter(lambda: ("front", "joint", "crown", "air"),
+                                media=lambda: ("air", "crown"))
+    def offered(text: str) -> list[str]:
+        return [c.text for c in completer.get_completions(Document(text), CompleteEvent())]
+    assert offered("surface back radius -40 into ") == ["air", "crown"]
+    assert offered("start in ") == ["air", "crown"]
+    assert offered("change front medium to ") == ["air", "crown"]
+    assert "front" in offered("stop at ")
+
+
+def test_completion_offers_units_that_fit_the_value() -> None:
+    after_radius = completions("change front radius to 50 ")
+    assert "mm" in after_radius and "deg" not in after_radius and "rad" not in after_radius
+    assert "diopters" not in completions("surface front radius 5 ")
+    assert set(completions("object at infinity, field angle 5 ")) >= {"deg", "rad"}
+    assert "mm" not in completions("object at infinity, field angle 5 ")
+    assert "diopters" in completions("lens l1 power 5 ")
+
+
 def test_completion_after_a_wrong_start_offers_nothing() -> None:
     assert candidates("surface ) ") == set()
 

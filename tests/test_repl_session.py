@@ -53,9 +53,9 @@ def test_the_five_minute_tour(tmp_path: Path) -> None:
     assert f"saved {len(workspace.statements)} statements to {copy}" in out
     assert load_file(copy).system == original
     assert main(["check", str(copy)]) == 0
-    # the example is in canonical form: saving writes it back byte for byte, with the new
-    # expectation appended and aligned as `layoutlang format` would
-    assert copy.read_text(encoding="utf-8") == format_text(
+    # saving writes the file back byte for byte, with the new expectation appended (it is not
+    # aligned with the block above: that would re-space lines the session did not change)
+    assert copy.read_text(encoding="utf-8") == (
         CAMERA.read_text(encoding="utf-8") + "expect back focal distance > 20\n")
 
 
@@ -112,6 +112,21 @@ def test_leave_word_also_asks() -> None:
     assert status == 0
 
 
+def test_after_a_rejected_line_the_prompt_starts_clean_and_the_line_is_in_history() -> None:
+    from prompt_toolkit.history import InMemoryHistory
+
+    history = InMemoryHistory()
+    workspace = Workspace.open(CAMERA)
+    # default parts: a wrong line is run and refused, never held in the prompt
+    out, status = run_session("surface ) flat\rchange front radius to 27\r\x04yes\r",
+                              workspace, history=history)
+    assert status == 0
+    assert "error:" in out and "^" in out
+    assert "front is now radius 27" in out  # the next line was read on its own, clean
+    assert list(history.load_history_strings())[-2:] == ["change front radius to 27",
+                                                        "surface ) flat"]
+
+
 def test_typed_lines_go_to_the_history() -> None:
     from prompt_toolkit.history import InMemoryHistory
 
@@ -120,8 +135,21 @@ def test_typed_lines_go_to_the_history() -> None:
     assert list(history.load_history_strings()) == ["undo", "show table"]
 
 
-def test_the_command_line_refuses_a_script_with_errors(tmp_path: Path, capsys) -> None:
+def test_the_command_line_opens_a_script_with_errors_to_fix_it(tmp_path: Path, capsys,
+                                                              monkeypatch) -> None:
     bad = tmp_path / "bad.lay"
     bad.write_text("start in air\nsurface front radius into air\n", encoding="utf-8")
-    assert main(["repl", str(bad), "--no-history"]) == 2
-    assert "bad.lay:2:" in capsys.readouterr().err
+    with create_pipe_input() as pipe:
+        pipe.send_text("surface front radius 20 into air\rshow script\r\x04yes\r")
+        with create_app_session(input=pipe, output=DummyOutput()):
+            assert main(["repl", str(bad), "--no-history"]) == 0
+    out = capsys.readouterr().out
+    assert "bad.lay:2:" in out and "left out" in out
+    assert "start in air\nsurface front radius 20 into air" in out
+
+
+def test_the_command_line_refuses_a_file_it_cannot_read(tmp_path: Path, capsys) -> None:
+    folder = tmp_path / "folder.lay"
+    folder.mkdir()
+    assert main(["repl", str(folder), "--no-history"]) == 2
+    assert "cannot read" in capsys.readouterr().err

@@ -194,16 +194,87 @@ def test_the_tour_example_opens_and_its_expectations_hold() -> None:
     assert all(r.passed for r in workspace.snapshot.checked)
 
 
-def test_save_keeps_the_header_comments_and_says_when_others_are_dropped(tmp_path: Path) -> None:
+def test_save_keeps_every_comment_and_blank_line(tmp_path: Path) -> None:
     path = tmp_path / "commented.lay"
-    path.write_text("# what this shows\n\n" + RELAY.replace("gap 5.2\n", "gap 5.2  # why\n"),
+    original = "# what this shows\n\n" + RELAY.replace("gap 5.2\n", "gap 5.2  # why\n\n")
+    path.write_text(original, encoding="utf-8")
+    workspace = Workspace.open(path)
+    workspace.run("change gap after front to 5.5")
+    workspace.run("expect image distance > 10")
+    assert workspace.run("save").startswith("saved")
+    assert path.read_text(encoding="utf-8") == original.replace(
+        "gap 5.2  # why", "gap 5.5  # why") + "expect image distance > 10\n"
+    assert load_file(path).system == workspace.snapshot.program.system
+
+
+def test_opening_an_example_changing_a_radius_and_saving_changes_exactly_that_number(
+        tmp_path: Path) -> None:
+    example = ROOT / "examples" / "label_reader_objective.lay"
+    original = example.read_bytes()
+    copy = tmp_path / example.name
+    copy.write_bytes(original)
+    workspace = Workspace.open(copy)
+    boundary = next(s for s in workspace.statements
+                    if getattr(s, "shape", None) is not None and s.shape.kind == "radius")
+    old = boundary.shape.value.text
+    workspace.run(f"change {boundary.name.text} radius to 33.25")
+    workspace.run("save")
+    written = copy.read_bytes()
+    line = f"{boundary.kind} {boundary.name.text} radius {old}".encode()
+    assert original.count(line) == 1
+    assert written == original.replace(line, line.replace(old.encode(), b"33.25"))
+
+
+def test_save_refuses_to_overwrite_a_file_changed_on_disk(relay: Workspace,
+                                                         tmp_path: Path) -> None:
+    relay.run("change front radius to 50")
+    outside = RELAY.replace("units mm", "units mm  # edited in another window")
+    relay.path.write_text(outside, encoding="utf-8")
+    out = relay.run("save")
+    assert "changed on disk since it was opened" in out and 'save "' in out
+    assert relay.path.read_text(encoding="utf-8") == outside and relay.unsaved
+    elsewhere = tmp_path / "mine.lay"
+    assert relay.run(f'save "{elsewhere}"').startswith("saved")
+    assert "radius 50 into crown" in elsewhere.read_text(encoding="utf-8")
+    # saving again to the file just written is fine: it is as we left it
+    relay.run("change front radius to 51")
+    assert relay.run("save").startswith("saved")
+
+
+def test_error_lines_are_the_lines_of_the_file_on_disk(tmp_path: Path) -> None:
+    path = tmp_path / "spaced.lay"
+    text = RELAY.replace("start in air\n", "start in air\n\n# the lens\n\n")
+    path.write_text(text, encoding="utf-8")
+    workspace = Workspace.open(path)
+    out = workspace.run("change front radius to 0")
+    line = text.splitlines().index("surface front radius 52.9 into crown") + 1
+    assert f"{path}:{line}:" in out
+
+
+def test_a_script_with_an_error_opens_and_can_be_fixed(tmp_path: Path) -> None:
+    path = tmp_path / "broken.lay"
+    path.write_text(RELAY.replace("into flint", "into flintt"), encoding="utf-8")
+    workspace = Workspace.open(path)
+    assert workspace.snapshot.error and "flintt" in workspace.notes[0]
+    assert "error to fix first" in workspace.run("show results")
+    out = workspace.run("change joint medium to flint")
+    assert "no error now" in out and "focal length" in out
+    assert workspace.snapshot.complete
+    workspace.run("save")
+    assert path.read_text(encoding="utf-8") == RELAY
+
+
+def test_a_script_with_a_syntax_error_opens_without_that_line(tmp_path: Path) -> None:
+    path = tmp_path / "typo.lay"
+    path.write_text(RELAY.replace("expect f-number < 8", "expct f-number < 8"),
                     encoding="utf-8")
     workspace = Workspace.open(path)
-    out = workspace.run("save")
-    assert "only the comment lines at its top are kept" in out
-    text = path.read_text(encoding="utf-8")
-    assert text.startswith("# what this shows\n\nlayout") and "# why" not in text
-    assert load_file(path).system == workspace.snapshot.program.system
+    assert "expct" in workspace.notes[0] and "left out" in workspace.notes[0]
+    assert workspace.snapshot.complete
+    workspace.run("expect f-number < 8")
+    workspace.run("save")
+    # the retyped statement follows the one before it; the left-out line's blank stays
+    assert path.read_text(encoding="utf-8") == RELAY + "\n"
 
 
 def test_reports_of_other_features_are_answered_and_not_kept(relay: Workspace) -> None:

@@ -14,6 +14,9 @@ The ideal `lens` boundary is treated as an ideal paraxial lens: at its (flat) pl
 the ray along the sense of travel changes by -y·power (tangent form, tan u' = tan u - y/f),
 which images every object point perfectly at its paraxial image. That is a model, not glass.
 
+Each ray also carries its optical path length (`Rays.opl`: n × signed geometric length, summed
+over the steps), which the wavefront and OPD engines read.
+
 Rays that cannot go on are flagged, not dropped: `MISSED` (the line does not meet the sphere),
 `VIGNETTED` (it meets it outside the clear diameter, or passes the stop plane outside the stop)
 and `TOTAL_REFLECTION` (total internal reflection), each with the index of the step where it
@@ -151,7 +154,7 @@ def geometry(system: System, stop_radius: float | None = None) -> Geometry:
 
 
 class Rays:
-    """A set of rays: positions, unit directions, and per-ray status.
+    """A set of rays: positions, unit directions, optical path lengths and per-ray status.
 
     The six coordinates live in one (6, N) array so that a block of rays is a single view and
     three-component updates are one numpy call. `x, y, z, kx, ky, kz` are row views.
@@ -160,12 +163,17 @@ class Rays:
         data: rows x, y, z, kx, ky, kz.
         status: OK, MISSED, VIGNETTED or TOTAL_REFLECTION (the first thing that went wrong).
         failed_at: index into `Geometry.steps` where the status was set, -1 while OK.
+        opl: optical path length travelled so far, sum of n × signed geometric length per
+            step (a segment run backwards to reach a virtual intersection counts negative),
+            in layout units; zero at `start`. Wavefront and OPD work read it.
     """
 
-    def __init__(self, data: np.ndarray, status: np.ndarray, failed_at: np.ndarray) -> None:
+    def __init__(self, data: np.ndarray, status: np.ndarray, failed_at: np.ndarray,
+                 opl: np.ndarray | None = None) -> None:
         self.data = data
         self.status = status
         self.failed_at = failed_at
+        self.opl = np.zeros(data.shape[1]) if opl is None else opl
 
     @classmethod
     def start(cls, x, y, z, kx, ky, kz) -> "Rays":
@@ -192,7 +200,7 @@ class Rays:
         return f"Rays({len(self)} rays, {int((self.status != OK).sum())} lost)"
 
     def copy(self) -> "Rays":
-        return Rays(self.data.copy(), self.status.copy(), self.failed_at.copy())
+        return Rays(self.data.copy(), self.status.copy(), self.failed_at.copy(), self.opl.copy())
 
     @property
     def ok(self) -> np.ndarray:
@@ -247,6 +255,7 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
     """
     data = rays.data[:, lo:hi]
     status, failed_at = rays.status[lo:hi], rays.failed_at[lo:hi]
+    opl = rays.opl[lo:hi]
     p, k = data[0:3], data[3:6]
     x, y, z, kx, ky, kz = data
     m = hi - lo
@@ -295,6 +304,9 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                     t[unstable] = (b[unstable] - s * pk[unstable]) / (c * n_here * n_here)
                 if not math.isfinite(t.sum()):  # D < 0: the ray passes the sphere by
                     _flag(status, failed_at, ~np.isfinite(t), MISSED, where)
+            # |K| = n, so the geometric length is n τ and the optical path n² τ
+            np.multiply(t, n * n, out=tmp)
+            opl += tmp
             np.multiply(kx, t, out=tmp)
             x += tmp
             np.multiply(ky, t, out=tmp)
@@ -311,6 +323,7 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
                 continue
             if step.action == _IDEAL:
                 _ideal_lens(x, y, kx, ky, kz, step, n)
+                opl -= _ideal_lens_path(x, y, step.power, n)
                 continue
             if step.action == _REFLECT:
                 if c == 0.0:
@@ -352,6 +365,15 @@ def _trace_block(rays: Rays, lo: int, hi: int, steps: Sequence[Step],
         z += last.z
         after = last.space_before + (0 if last.action == _PLANE else 1)
         k /= _index_chunk(indices[after], lo, hi)
+
+
+def _ideal_lens_path(x, y, power, n: Index):
+    """The optical path an ideal lens takes away at height r: n (sqrt(r² + f²) - f), so that
+    a plane wave leaves it as a spherical wave about the focus (exact for the object at
+    infinity; a model, like the lens itself). Written as n r² P / (1 + sqrt(1 + r² P²)) so a
+    zero or negative power needs no special case."""
+    r2 = x * x + y * y
+    return n * r2 * power / (1.0 + np.sqrt(1.0 + r2 * power * power))
 
 
 def _ideal_lens(x, y, kx, ky, kz, step: Step, n: Index) -> None:

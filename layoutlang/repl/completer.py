@@ -20,11 +20,32 @@ from ..quantities import ALIASES, QUANTITIES
 from ..syntax.parser import parser
 from .validator import join_lines
 
-__all__ = ["LayoutCompleter", "next_terminals", "candidates"]
+__all__ = ["LayoutCompleter", "next_terminals", "candidates", "units_for"]
 
 _PARTIAL = re.compile(r"[A-Za-z_][A-Za-z0-9_-]*$")
 #: The words the UNIT terminal matches (grammar/layoutlang.lark), for completion after a number.
 _UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "diopters")
+_LENGTH_UNITS = ("nm", "um", "mm", "cm", "m", "in")
+#: The word that says what kind of value follows, and the units that value may take.
+_UNITS_AFTER = {"angle": ("deg", "rad"), "power": ("diopters",)}
+#: Statements whose values may be of any kind (the unit depends on a quantity or a constant).
+_ANY_KIND = frozenset({"expect", "let", "nominal", "report", "sample"})
+#: Words after which only a medium may stand.
+_MEDIUM_AFTER = re.compile(r"(?:\binto|^\s*start\s+in|\bmedium\s+to)\s+$")
+
+
+def units_for(text: str) -> tuple[str, ...]:
+    """The unit words that fit the value just typed: angles only after `angle`, diopters only
+    after `power`, lengths elsewhere (a radius, a gap, a diameter, a distance)."""
+    words = re.findall(r"[A-Za-z_][A-Za-z_-]*", text)
+    if not words or words[0] in _ANY_KIND:
+        return _UNIT_WORDS
+    for word in reversed(words):
+        if word in _UNITS_AFTER:
+            return _UNITS_AFTER[word]
+        if word not in ("to", "by"):
+            break
+    return _LENGTH_UNITS
 
 
 @cache
@@ -43,8 +64,15 @@ def next_terminals(text: str) -> set[str]:
         return set()
 
 
-def candidates(text: str, names: Iterable[str] = ()) -> set[str]:
-    """Every word that may come next after `text`."""
+def candidates(text: str, names: Iterable[str] = (),
+               media: Iterable[str] | None = None) -> set[str]:
+    """Every word that may come next after `text`.
+
+    Args:
+        text: what stands before the word being typed.
+        names: every name in scope.
+        media: the names of media (offered alone after `into`); None: not known, use `names`.
+    """
     found = set()
     literals = _literals()
     for terminal in next_terminals(text):
@@ -52,8 +80,11 @@ def candidates(text: str, names: Iterable[str] = ()) -> set[str]:
         if word is not None and word[:1].isalpha():
             found.add(word)
         elif terminal == "UNIT":
-            found.update(_UNIT_WORDS)
+            found.update(units_for(text))
         elif terminal == "NAME":
+            if media is not None and _MEDIUM_AFTER.search(text):
+                found.update(media)
+                continue
             found.update(names)
             first = text.split()[:1]
             if first and first[0] in ("expect", "report"):
@@ -70,9 +101,11 @@ class LayoutCompleter(Completer):
     """Offers what the grammar allows at the cursor."""
 
     def __init__(self, names: Callable[[], Iterable[str]] = lambda: (),
-                 pending: Callable[[], str] = lambda: "") -> None:
+                 pending: Callable[[], str] = lambda: "",
+                 media: Callable[[], Iterable[str]] | None = None) -> None:
         self.names = names
         self.pending = pending
+        self.media = media
 
     def get_completions(self, document: Document,
                         complete_event: CompleteEvent) -> Iterator[Completion]:
@@ -90,7 +123,8 @@ class LayoutCompleter(Completer):
                     yield Completion(name, start_position=-len(words), display_meta="quantity")
             return
         # a quantity may be several words ("focal length"): it is offered whole
-        for word in sorted(candidates(head, self.names())):
+        media = self.media() if self.media is not None else None
+        for word in sorted(candidates(head, self.names(), media)):
             if word.startswith(partial) and word != partial:
                 meta = "quantity" if word in QUANTITIES or word in ALIASES else None
                 yield Completion(word, start_position=-len(partial), display_meta=meta)

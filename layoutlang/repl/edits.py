@@ -14,7 +14,7 @@ from typing import Any, Callable
 from ..errors import LayoutNameError, LayoutValueError, Span
 from ..syntax import tree as t
 
-__all__ = ["apply_edit", "Statements", "boundary_names", "scope_names"]
+__all__ = ["apply_edit", "Statements", "boundary_names", "scope_names", "medium_names"]
 
 Statements = tuple[t.Statement, ...]
 
@@ -37,6 +37,16 @@ def scope_names(statements: Statements) -> list[str]:
     for statement in statements:
         ident = getattr(statement, "name", None)
         if isinstance(ident, t.Ident):
+            found.append(ident.text)
+    return sorted(set(found))
+
+
+def medium_names(statements: Statements) -> list[str]:
+    """The media the session knows (defined ones, air and vacuum), for completion after `into`."""
+    found = ["air", "vacuum"]
+    for statement in statements:
+        ident = getattr(statement, "name", None)
+        if isinstance(ident, t.Ident) and type(statement).__name__.startswith("Medium"):
             found.append(ident.text)
     return sorted(set(found))
 

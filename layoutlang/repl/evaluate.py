@@ -33,10 +33,18 @@ class Snapshot:
     results: FirstOrder | None = None
     checked: tuple[CheckResult, ...] = ()
     incomplete: str | None = None
+    error: str | None = None  # the layout has a mistake (e.g. a script opened with one)
 
     @property
     def complete(self) -> bool:
         return self.program is not None
+
+    @property
+    def why_not(self) -> str:
+        """Why there are no results, in words."""
+        if self.error is not None:
+            return "the layout has an error to fix first:\n" + self.error
+        return f"the layout is not complete yet: {self.incomplete}"
 
 
 def _incomplete_reason(statements: tuple[t.Statement, ...]) -> str | None:
@@ -49,17 +57,17 @@ def _incomplete_reason(statements: tuple[t.Statement, ...]) -> str | None:
 
 
 def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
-             file: str = SESSION_FILE, header: str = "") -> Snapshot:
+             file: str = SESSION_FILE, text: str | None = None) -> Snapshot:
     """Interpret the statements and evaluate the layout.
 
-    The statements are read back as `save` writes them (header comments, then one statement
-    per line), so a line number in a message is the line of the saved file.
+    The statements are read back from the text `save` would write (the file's own text with
+    the session's edits made in it), so a line number in a message is a line of that file.
 
     Args:
         statements: the layout statements (no session commands).
         base: the folder `use "file"` is resolved against.
         file: the name messages mention (the session's file, once it has one).
-        header: the comment lines kept above the statements.
+        text: the script text that says `statements` (default: their canonical text).
 
     Returns:
         The snapshot (with results, or the reason the layout is not complete yet).
@@ -67,8 +75,7 @@ def evaluate(statements: tuple[t.Statement, ...], base: Path | None = None,
     Raises:
         LayoutError: a statement is wrong (the caller keeps its earlier state).
     """
-    # `save` aligns this text with the formatter, which moves columns but never lines
-    script = parse(header + unparse(statements), file)
+    script = parse(unparse(statements) if text is None else text, file)
     reason = _incomplete_reason(script.statements)
     if reason is None:
         program = interpreter.interpret(script, base=base)

@@ -24,7 +24,7 @@ from ..errors import LayoutError
 from .completer import LayoutCompleter
 from .keys import session_key_bindings
 from .lexer import LayoutLexer
-from .validator import LayoutValidator, is_unfinished, join_lines
+from .validator import is_unfinished, join_lines
 from .workspace import LeaveRequested, Workspace
 
 __all__ = ["Session", "main_repl", "PROMPT", "CONTINUE"]
@@ -61,7 +61,8 @@ class Session:
         Args:
             workspace: the layout being edited (default: an empty one).
             history: where typed lines are kept (default: in memory).
-            completer, validator, lexer: pass None to switch one off.
+            completer, lexer: pass None to switch one off.
+            validator: none by default (a `LayoutValidator` refuses wrong lines at the prompt).
             key_bindings: added to prompt_toolkit's line editing (default: ours).
             input, output: the terminal (tests pass a pipe and a dummy output).
             write: where results are printed.
@@ -71,10 +72,13 @@ class Session:
         self.write = write
         self.prompt = PromptSession(
             history=history or InMemoryHistory(),
-            completer=LayoutCompleter(self.workspace_names, self.current_pending)
+            completer=LayoutCompleter(self.workspace_names, self.current_pending,
+                                      self.workspace_media)
             if completer is _DEFAULT else completer,
-            validator=LayoutValidator(self.current_pending)
-            if validator is _DEFAULT else validator,
+            # no validator by default: a refused line would stay in the prompt and out of the
+            # history; the session runs it, prints the error with its caret, and the next
+            # prompt starts clean (the line is one arrow-up away)
+            validator=None if validator is _DEFAULT else validator,
             lexer=PygmentsLexer(LayoutLexer) if lexer is _DEFAULT else lexer,
             key_bindings=key_bindings or session_key_bindings(),
             validate_while_typing=False,
@@ -85,6 +89,9 @@ class Session:
 
     def workspace_names(self) -> list[str]:
         return self.workspace.names()
+
+    def workspace_media(self) -> list[str]:
+        return self.workspace.media()
 
     def current_pending(self) -> str:
         return self.pending
@@ -151,6 +158,8 @@ def main_repl(file: str | None, history_path: Path | None) -> int:
     opened = f"opened {file}" if file and workspace.statements else (
         f"new file {file}" if file else "new layout")
     session.say(f"{opened}; type 'help' for the words of the session, Ctrl-D to leave")
+    for note in workspace.notes:  # a line left out, or the error the script has
+        session.say(note)
     if workspace.snapshot.complete:
         session.say(workspace.show("results"))
     return session.run()

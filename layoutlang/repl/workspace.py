@@ -12,15 +12,16 @@ import os
 import tempfile
 from pathlib import Path
 
-from ..errors import LayoutError, LayoutFileError, LayoutValueError
+from ..errors import LayoutError, LayoutFileError, LayoutSyntaxError, LayoutValueError
 from ..syntax import tree as t
 from ..syntax.parser import parse
+from ..syntax.rewrite import RewriteError, rewrite, tidy_touched
 from ..syntax.unparse import unparse
 from .changes import describe_changes
-from .edits import Statements, apply_edit, scope_names
+from .edits import Statements, apply_edit, medium_names, scope_names
 from .evaluate import SESSION_FILE, Snapshot, evaluate
 
-__all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP", "write_atomically", "split_header"]
+__all__ = ["Workspace", "LeaveRequested", "QUESTIONS", "HELP", "write_atomically"]
 
 #: Statements that ask for output and are answered at once, not added to the layout.
 QUESTIONS = frozenset({"Report", "QualifiedReport", "ReportRays", "Derive", "Solve", "Sensitivity"})
@@ -47,44 +48,80 @@ class LeaveRequested(Exception):
 
 
 class Workspace:
-    """The layout being edited, with its undo and redo stacks and the file it belongs to."""
+    """The layout being edited, with its undo and redo stacks and the file it belongs to.
+
+    The file's text as it was opened (or last saved) is kept with the statements it parsed to:
+    `save` edits that text only at the tokens that changed (`syntax/rewrite.py`), so comments,
+    blank lines and alignment stay, and messages give the lines of that text.
+    """
 
     def __init__(self, statements: Statements = (), path: Path | None = None,
-                 base: Path | None = None, header: str = "",
-                 dropped_comments: bool = False) -> None:
+                 base: Path | None = None, source: str = "",
+                 source_statements: Statements | None = None,
+                 keep_error: bool = False) -> None:
         """Start from statements (e.g. a loaded script).
 
         Args:
             statements: the layout statements to start from.
             path: the file `save` writes to.
             base: the folder `use "file"` is resolved against (default: the file's folder).
-            header: comment lines written above the statements on save.
-            dropped_comments: whether the file had comments below its header (not kept).
+            source: the script text the statements were read from ("" for a new layout).
+            source_statements: what `source` parses to, with positions (default: parsed here).
+            keep_error: open statements that do not make a valid layout, with their error
+                (so they can be fixed in the session) instead of raising it.
 
         Raises:
-            LayoutError: the statements do not make a valid (possibly unfinished) layout.
+            LayoutError: the statements do not make a valid (possibly unfinished) layout
+                (unless `keep_error`).
         """
         self.path = path
-        self.header = header
-        self.dropped_comments = dropped_comments
         self.base = base or (path.parent if path else None)
-        self.snapshot: Snapshot = self._evaluate(tuple(statements))
+        self._set_source(source, source_statements)
+        #: the file's text when it was opened or last saved: `save` refuses to overwrite a
+        #: file that has changed on disk since (someone else's edit would be lost)
+        self.disk_text: str | None = source if path and path.exists() else None
+        #: what was said while opening (lines left out, the error the script has)
+        self.notes: list[str] = []
+        try:
+            self.snapshot: Snapshot = self._evaluate(tuple(statements))
+        except LayoutError as error:
+            if not keep_error:
+                raise
+            self.snapshot = Snapshot(tuple(statements), error=str(error))
+            self.notes.append(self.snapshot.why_not)
         self.undo_stack: list[Snapshot] = []
         self.redo_stack: list[Snapshot] = []
         self.saved: Statements = tuple(statements) if path and path.exists() else ()
 
+    def _set_source(self, source: str, statements: Statements | None = None) -> None:
+        self.source = source
+        self.source_statements = statements if statements is not None else (
+            parse(source, str(self.path or SESSION_FILE)).statements if source.strip() else ())
+
     @classmethod
     def open(cls, path: Path) -> Workspace:
-        """The workspace of a script file (a file that does not exist yet starts empty)."""
+        """The workspace of a script file (a file that does not exist yet starts empty).
+
+        A script with a mistake still opens, so it can be fixed here: a line that does not
+        parse is left out of the layout (its line stays blank, so the lines after it keep their
+        numbers), and a layout that does not evaluate opens with its error shown.
+
+        Raises:
+            LayoutFileError: the file cannot be read.
+        """
         if not path.exists():
             return cls((), path)
         try:
             text = path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as error:
             raise LayoutFileError(f"cannot read {path}: {error}") from None
-        header, rest = split_header(text)
-        return cls(parse(text, str(path)).statements, path, header=header,
-                   dropped_comments="#" in rest)
+        usable, notes = _parseable(text, str(path))
+        script = parse(usable, str(path))
+        workspace = cls(script.statements, path, source=usable,
+                        source_statements=script.statements, keep_error=True)
+        workspace.disk_text = text
+        workspace.notes[:0] = notes
+        return workspace
 
     # --- state ------------------------------------------------------------------------------
     @property
@@ -98,6 +135,9 @@ class Workspace:
 
     def names(self) -> list[str]:
         return scope_names(self.statements)
+
+    def media(self) -> list[str]:
+        return medium_names(self.statements)
 
     # --- running input ----------------------------------------------------------------------
     def run(self, text: str) -> str:
@@ -141,17 +181,44 @@ class Workspace:
             return self.answer(statement)
         return self._commit(self.statements + (statement,), "")
 
+    def text_of(self, statements: Statements) -> str:
+        """The script text `save` writes for these statements: the file's own text, changed
+        only where the statements changed.
+
+        Raises:
+            RewriteError: the statements cannot be written into the text exactly.
+        """
+        file = str(self.path) if self.path else SESSION_FILE
+        text = rewrite(self.source, self.source_statements, statements, file)
+        return tidy_touched(self.source, text, file)
+
     def _evaluate(self, statements: Statements) -> Snapshot:
         """Evaluate as the saved file would read: its name and its line numbers."""
         file = str(self.path) if self.path else SESSION_FILE
-        return evaluate(statements, self.base, file, self.header)
+        try:
+            text = self.text_of(statements)
+        except RewriteError:
+            text = None  # evaluated in canonical form; `save` says it cannot write this
+        return evaluate(statements, self.base, file, text)
 
     def _commit(self, statements: Statements, said: str) -> str:
-        after = self._evaluate(statements)  # raises: nothing below runs, nothing changes
+        try:
+            after = self._evaluate(statements)  # raises: nothing below runs, nothing changes
+        except LayoutError as error:
+            if self.snapshot.error is None:
+                raise
+            # the layout had an error already (opened that way): keep the edit, so it can be
+            # fixed in several steps, and say what is still wrong
+            after = Snapshot(statements, error=str(error))
         before = self.snapshot
         self.undo_stack.append(before)
         self.redo_stack.clear()
         self.snapshot = after
+        if after.error is not None:
+            return "\n".join(([said] if said else []) + [after.why_not])
+        if before.error is not None:
+            return "\n".join(([said] if said else []) + ["the layout has no error now"] +
+                             ([self.show("results")] if after.complete else []))
         return "\n".join(([said] if said else []) + describe_changes(before, after))
 
     def _step(self, source: list[Snapshot], target: list[Snapshot], word: str) -> str:
@@ -167,7 +234,7 @@ class Workspace:
         from ..reports.text import full_report
 
         if not self.snapshot.complete:
-            raise LayoutValueError(f"the layout is not complete yet: {self.snapshot.incomplete}")
+            raise LayoutValueError(self.snapshot.why_not)
         asked = self._evaluate(self.statements + (statement,))
         kind = _SYMBOLIC_REQUESTS.get(type(statement).__name__)
         if kind is not None and asked.program.symbolic is not None:
@@ -193,7 +260,7 @@ class Workspace:
         if what == "script":
             return unparse(self.statements).rstrip("\n") or "(no statements yet)"
         if not self.snapshot.complete:
-            return f"the layout is not complete yet: {self.snapshot.incomplete}"
+            return self.snapshot.why_not
         from ..reports.text import expectation_lines, layout_table
 
         if what == "table":
@@ -204,38 +271,57 @@ class Workspace:
 
     # --- keeping ----------------------------------------------------------------------------
     def save(self, path: Path | None = None) -> str:
-        """Write the layout as a canonical script, atomically (temp file, then rename)."""
+        """Write the layout into its script, atomically (temp file, then rename).
+
+        Only the statements that changed are edited in the file's text; every comment and
+        blank line stays. A file changed on disk since it was opened is not overwritten.
+        """
         path = path or self.path
         if path is None:
             raise LayoutValueError("no file to save to yet",
                                    expected='a file name: save "my_layout.lay"')
-        from ..formatter import format_text  # the same canonical layout as `layoutlang format`
-
-        text = format_text(self.header + unparse(self.statements), str(path))
-        if parse(text, str(path)).statements != self.statements:  # never write what won't load
-            raise LayoutValueError("the layout cannot be written back as a script exactly")
+        if path == self.path and self.disk_text is not None:
+            try:
+                now = path.read_text(encoding="utf-8") if path.exists() else None
+            except (OSError, UnicodeDecodeError):
+                now = None
+            if now != self.disk_text:
+                raise LayoutFileError(
+                    f"{path} has changed on disk since it was opened; not overwritten "
+                    "(someone's edits would be lost)",
+                    hint='save elsewhere with save "another_name.lay", then compare the two')
+        try:
+            text = self.text_of(self.statements)
+        except RewriteError as error:
+            raise LayoutValueError(str(error)) from None
         write_atomically(path, text)
-        self.path, self.saved = path, self.statements
+        self.path, self.saved, self.disk_text = path, self.statements, text
+        self._set_source(text)
         if self.base is None:
             self.base = path.parent
-        said = f"saved {len(self.statements)} statements to {path}"
-        if self.dropped_comments:
-            said += ("\nnote: the script is written in canonical form; only the comment lines "
-                     "at its top are kept")
-        return said
+        return f"saved {len(self.statements)} statements to {path}"
 
 
-def split_header(text: str) -> tuple[str, str]:
-    """The comment (and blank) lines at the top of a script, and the rest."""
+def _parseable(text: str, file: str) -> tuple[str, list[str]]:
+    """The text with every line that does not parse blanked out, and what was said about it.
+
+    The blank keeps the numbers of the lines below, so messages still point at the file.
+    """
+    notes: list[str] = []
     lines = text.splitlines(keepends=True)
-    count = 0
-    while count < len(lines) and (not lines[count].strip() or
-                                  lines[count].lstrip().startswith("#")):
-        count += 1
-    header = "".join(lines[:count])
-    if header and not header.endswith("\n"):
-        header += "\n"
-    return header, "".join(lines[count:])
+    for _ in range(len(lines) + 1):
+        try:
+            parse("".join(lines), file)
+            break
+        except LayoutSyntaxError as error:
+            line = (error.span.line if error.span else 0) or 0
+            if not 1 <= line <= len(lines) or not lines[line - 1].strip():
+                raise
+            notes.append(f"{error}\nnote: line {line} is left out of the layout until it is "
+                         "typed again corrected (insert ... before NAME puts it in its place); "
+                         "save writes the file without it")
+            lines[line - 1] = "\n" if lines[line - 1].endswith("\n") else ""
+    return "".join(lines), notes
 
 
 #: Symbolic questions and the list of requests each adds to the program's symbolic part.

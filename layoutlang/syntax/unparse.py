@@ -11,7 +11,7 @@ from typing import Callable, Iterable
 
 from . import tree as t
 
-__all__ = ["unparse", "unparse_statement", "expression_text", "UnparseError"]
+__all__ = ["unparse", "unparse_statement", "expression_text", "binding_level", "UnparseError"]
 
 
 class UnparseError(TypeError):
@@ -45,6 +45,12 @@ def _level(node: t.Expr) -> int:
     if isinstance(node, t.Negate):
         return _SIGNED
     return _ATOM
+
+
+def binding_level(node: t.Expr) -> int:
+    """How tightly an expression binds (higher binds tighter): text that replaces a
+    sub-expression needs parentheses when it binds more loosely than what it replaces."""
+    return _level(node)
 
 
 def _wrap(node: t.Expr, needed: int) -> str:
