@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
+from .engines.qualitysettings import QualityRequest
 from .quantities import PERCENT, POWER, RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
@@ -26,7 +27,8 @@ class CheckResult:
 def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
-    return {"length": units, "power": "diopters", PERCENT: "%"}.get(kind, "")
+    return {"length": units, "power": "diopters", PERCENT: "%", "waves": "waves",
+            "degrees": "deg"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
@@ -60,7 +62,13 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
         kind = expectation.kind
         label = expectation.quantity
         request = getattr(expectation, "request", None)
-        if request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
+        if isinstance(request, QualityRequest):  # image quality (engines/quality.py)
+            from .engines.quality import image_quality
+
+            value = image_quality(program.system, program.rays, program.quality.settings,
+                                  results).value(request)
+            label = request.describe()
+        elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
             from .engines.chromatic import evaluate
 
             value = evaluate(request, program.system, results)

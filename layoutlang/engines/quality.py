@@ -214,6 +214,12 @@ class ImageQuality:
             if isinstance(field, Unavailable):
                 return field
         name = request.name
+        if name == "image circle margin":
+            radius = self.image_circle_radius()
+            if isinstance(radius, Unavailable) or self.settings.sensor is None:
+                return radius if isinstance(radius, Unavailable) else \
+                    Unavailable("none: the layout has no sensor")
+            return radius - self.settings.sensor.half_diagonal
         if name in ("tangential focus", "sagittal focus", "chief-ray angle", "illumination",
                     "cos4 illumination"):
             row = self.field_row(field)

@@ -35,13 +35,13 @@ from . import realrays
 from .aberrations import RaySetup, _lost_words, _object_rays, aim
 from .firstorder import Unavailable
 from .psf import PupilFunction, cell_centres
-from .zernike import ZernikeFit, fit
+from .zernike import TERM_COUNT, ZernikeFit, fit
 
 __all__ = ["Bundle", "Wavefront", "bundle", "wavefront", "best_focus", "TERMS",
            "STEEP_WAVES"]
 
 #: Zernike terms fitted (Noll 1..22: through secondary spherical)
-TERMS = 22
+TERMS = TERM_COUNT
 #: a wavefront that changes by more than this (waves) between neighbouring grid cells is too
 #: steep for the grid: its diffraction MTF would alias, so the geometric MTF is used instead
 STEEP_WAVES = 0.5

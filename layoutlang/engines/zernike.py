@@ -23,10 +23,13 @@ import math
 from dataclasses import dataclass
 from typing import Sequence
 
-import numpy as np
+from typing import TYPE_CHECKING
 
-__all__ = ["noll_to_nm", "zernike", "term_name", "TERM_NAMES", "lookup_term", "ZernikeFit",
-           "fit"]
+if TYPE_CHECKING:  # numpy is imported where polynomials are evaluated: the names need none
+    import numpy as np
+
+__all__ = ["noll_to_nm", "zernike", "term_name", "TERM_NAMES", "TERM_COUNT", "lookup_term",
+           "ZernikeFit", "fit"]
 
 
 def noll_to_nm(j: int) -> tuple[int, int]:
@@ -40,6 +43,8 @@ def noll_to_nm(j: int) -> tuple[int, int]:
 
 
 def _radial(n: int, m: int, rho: np.ndarray) -> np.ndarray:
+    import numpy as np
+
     m = abs(m)
     total = np.zeros_like(rho)
     for s in range((n - m) // 2 + 1):
@@ -52,6 +57,8 @@ def _radial(n: int, m: int, rho: np.ndarray) -> np.ndarray:
 
 def zernike(j: int, rho: np.ndarray, theta: np.ndarray) -> np.ndarray:
     """Noll's normalised term j at polar pupil coordinates (ρ ≤ 1, θ from x towards y)."""
+    import numpy as np
+
     n, m = noll_to_nm(j)
     radial = _radial(n, m, np.asarray(rho, dtype=float))
     if m == 0:
@@ -88,8 +95,10 @@ def term_name(j: int) -> str:
     return f"{prefix}{side} {word}"
 
 
-#: Names of the first 22 Noll terms (through secondary spherical), index → name.
-TERM_NAMES = {j: term_name(j) for j in range(1, 23)}
+#: terms the wavefront fit keeps (Noll 1..22: through secondary spherical)
+TERM_COUNT = 22
+#: Names of those terms, index → name.
+TERM_NAMES = {j: term_name(j) for j in range(1, TERM_COUNT + 1)}
 _BY_NAME = {name: j for j, name in TERM_NAMES.items()}
 _BY_NAME.update({"primary spherical": 11, "x tilt": 2, "y tilt": 3, "focus": 4})
 
@@ -122,6 +131,8 @@ def fit(x: np.ndarray, y: np.ndarray, w: np.ndarray, terms: int = 22,
     Solved with numpy's SVD-based `lstsq`, so a term the sampled points cannot tell apart from
     others (too few points) gets the minimum-norm share instead of a huge number.
     """
+    import numpy as np
+
     x, y, w = (np.asarray(a, dtype=float).ravel() for a in (x, y, w))
     rho = np.hypot(x, y)
     theta = np.arctan2(y, x)

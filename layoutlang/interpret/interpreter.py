@@ -25,6 +25,7 @@ from .expressions import ExpressionEvaluator, NumericBackend
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
 from .symbolstatements import SymbolicStatements
+from .qualitystatements import QualityStatements
 from ..engines.raysettings import RaySettings
 
 __all__ = ["Expectation", "Program", "interpret", "check_statements", "load_file",
@@ -67,6 +68,7 @@ class Program:
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
+    quality: Any = None  # qualitystatements.QualityPlan: image-quality sampling and reports
 
     def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
         from ..notebook import program_html
@@ -95,7 +97,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
     _Interpreter(script, base or Path.cwd()).run_statements()
 
 
-class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, QualityStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -511,6 +513,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
             self.file, self.lines = self.stop_context
             system = replace(system, stop=self.build_stop(self.stop_node, system))
         rays = self.ray_settings(system)
+        quality = self.quality_plan(system)
         expectations = []
         for node, (self.file, self.lines) in self.expect_nodes:
             expectations.append(self.expectation(node))
@@ -518,7 +521,8 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
         return self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports), tuple(self.hazards),
             dict(self.names), rays=rays, ray_reports=self.ray_reports(),
-            colour=self.colour_requests(system), warnings=self.material_warnings()))
+            colour=self.colour_requests(system), warnings=self.material_warnings(),
+            quality=quality))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -562,6 +566,8 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements):
         return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
 
     def expectation(self, node: t.Expect) -> Expectation:
+        if isinstance(node, (t.QualityExpect, t.ExpectCoverage)):  # qualitystatements.py
+            return self.quality_expectation(node)
         request = self.expect_request(node)  # colour quantities, `at wavelength F`
         if request is None and (isinstance(node, t.ExpectRays)
                                 or is_ray_quantity(node.quantity.text)):
@@ -606,7 +612,8 @@ def _literal(node: t.Expr) -> str:
 
 _HANDLERS = {
     name[len("statement_"):]: method
-    for cls in (RayStatements, SymbolicStatements, MaterialStatements, _Interpreter)
+    for cls in (RayStatements, SymbolicStatements, MaterialStatements, QualityStatements,
+                _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")
 }
