@@ -107,3 +107,6 @@ def report(path, fmt: str = "md", output=None) -> str:
     from .reports.document import render_document
 
     return render_document(str(path), fmt, None if output is None else str(output)).text
+
+
+del annotations  # the future import is not part of the API

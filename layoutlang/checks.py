@@ -3,21 +3,25 @@
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
 from .engines.qualitysettings import QualityRequest
-from .quantities import PERCENT, POWER, RAY_QUANTITIES
+from .quantities import PERCENT, POWER, QUANTITIES, RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
 
-__all__ = ["CheckResult", "check_program", "evaluate_program", "display_unit", "to_display"]
+__all__ = ["CheckResult", "QuantityReading", "check_program", "evaluate_program", "read_quantity",
+           "display_unit", "to_display"]
 
 
 @dataclass(frozen=True)
 class CheckResult:
     expectation: Expectation
     outcome: Outcome
+    label: str = ""  # the quantity with its qualifiers, in words
+    unit: str = ""  # the unit the value and the message are in
 
     @property
     def passed(self) -> bool:
@@ -60,44 +64,79 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
     checked = []
     for expectation in program.expectations:
         kind = expectation.kind
-        label = expectation.quantity
-        request = getattr(expectation, "request", None)
-        if isinstance(request, QualityRequest):  # image quality (engines/quality.py)
-            from .engines.quality import image_quality
-
-            value = image_quality(program.system, program.rays, program.quality.settings,
-                                  results).value(request)
-            label = request.describe()
-        elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
-            from .engines.chromatic import evaluate
-
-            value = evaluate(request, program.system, results)
-            label = request.describe()
-        elif expectation.quantity in RAY_QUANTITIES:  # exact rays or Seidel sums, traced once
-            from .engines.rayquantities import ray_quantities
-
-            rays = ray_quantities(program.system, program.rays, results)
-            value = rays.value(expectation.quantity, expectation.field, expectation.scale,
-                               expectation.wavelength)
-            if expectation.field is not None:
-                label = f"{label} at field {expectation.field:g}"
-            if expectation.wavelength is not None:
-                nm = to_nanometres(expectation.wavelength, units)
-                label = f"{label} at {nm:.6g} nm"
-            if expectation.scale:
-                label = f"size of the {label} in depths of focus"
-        elif program.symbolic is not None and \
-                expectation.quantity in program.symbolic.expected_sensitivities:
-            value = program.symbolic.expected_sensitivities[expectation.quantity]  # symbolic/
-        else:
-            value = results[expectation.quantity]
-        actual = to_display(value, kind, units)
+        reading = read_quantity(program, results, expectation.quantity, field=expectation.field,
+                                wavelength=expectation.wavelength, scale=expectation.scale,
+                                request=getattr(expectation, "request", None), kind=kind,
+                                label=getattr(expectation, "label", ""))
         expected = to_display(expectation.expected, kind, units)
         tolerance = expectation.tolerance
         if tolerance is not None and not expectation.relative:
             tolerance = to_display(tolerance, kind, units)
-        unit = "depths of focus" if expectation.scale else display_unit(kind, units)
-        outcome = compare(actual, expectation.op, expected, tolerance, expectation.relative,
-                          unit, label)
-        checked.append(CheckResult(expectation, outcome))
+        outcome = compare(reading.value, expectation.op, expected, tolerance,
+                          expectation.relative, reading.unit, reading.label)
+        checked.append(CheckResult(expectation, outcome, reading.label, reading.unit))
     return checked
+
+
+@dataclass(frozen=True)
+class QuantityReading:
+    """One quantity as a script names it: its label in words, its value in the display unit
+    (or the `Unavailable` saying why there is none) and that unit."""
+
+    label: str
+    value: Any
+    unit: str
+
+
+def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
+                  field: float | None = None, wavelength: float | None = None, scale: str = "",
+                  request: Any = None, kind: str | None = None, label: str = ""
+                  ) -> QuantityReading:
+    """The value of a quantity with its qualifiers, as `expect` checks it and `compare` shows it.
+
+    Args:
+        program: the interpreted script.
+        results: its first-order results.
+        quantity: the quantity's name (quantities.QUANTITIES, or a sensitivity's name).
+        field: ray quantities: the field fraction (None: the quantity's default).
+        wavelength: ray quantities: the wavelength in layout units (None: the primary).
+        scale: 'depth of focus' when the value is wanted in depths of focus.
+        request: colour quantities and `at wavelength`: an engines.chromatic.Request.
+        kind: the quantity's kind when it is not in the table (e.g. a sensitivity).
+        label: ray quantities: the label as the script wrote it (default: made from the
+            field and wavelength).
+    """
+    units = program.system.units
+    kind = kind or QUANTITIES[quantity].kind
+    written, label = label, quantity
+    if isinstance(request, QualityRequest):  # image quality (engines/quality.py)
+        from .engines.quality import image_quality
+
+        value = image_quality(program.system, program.rays, program.quality.settings,
+                              results).value(request)
+        label = request.describe()
+    elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
+        from .engines.chromatic import evaluate
+
+        value = evaluate(request, program.system, results)
+        label = request.describe()
+    elif quantity in RAY_QUANTITIES:  # exact rays or Seidel sums, traced once
+        from .engines.rayquantities import ray_quantities
+
+        rays = ray_quantities(program.system, program.rays, results)
+        value = rays.value(quantity, field, scale, wavelength)
+        if written:
+            label = written
+        else:
+            if field is not None:
+                label = f"{label} at field {field:g}"
+            if wavelength is not None:
+                label = f"{label} at wavelength {to_nanometres(wavelength, units):.6g} nm"
+        if scale:
+            label = f"size of the {label} in depths of focus"
+    elif program.symbolic is not None and quantity in program.symbolic.expected_sensitivities:
+        value = program.symbolic.expected_sensitivities[quantity]  # symbolic/
+    else:
+        value = results[quantity]
+    unit = "depths of focus" if scale else display_unit(kind, units)
+    return QuantityReading(label, to_display(value, kind, units), unit)

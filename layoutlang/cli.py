@@ -33,9 +33,16 @@ def _parser() -> argparse.ArgumentParser:
     check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
     check.add_argument("--json", action="store_true", help="machine-readable output")
     check.add_argument("--junit", metavar="FILE", help="also write JUnit XML to FILE")
+    check.add_argument("--against", metavar="REV",
+                       help="also say, for each file, what changed since git revision REV")
+    check.add_argument("--markdown", metavar="OUT",
+                       help="with --against: write the comparisons as Markdown to OUT")
     from .workflow import add_commands  # format, draw, report
 
     add_commands(commands)
+    from .review.command import add_command as add_compare  # compare two versions
+
+    add_compare(commands)
     repl = commands.add_parser("repl", help="edit a layout interactively, seeing what changes")
     repl.add_argument("file", nargs="?", help="a layout script to open (and save to)")
     kept = repl.add_mutually_exclusive_group()
@@ -58,11 +65,18 @@ def main(argv: Sequence[str] | None = None) -> int:
             from .symbolic.command import run as derive
 
             return derive(args)
+        if args.command == "compare":
+            from .review.command import run as compare
+
+            return compare(args)
         if args.command != "check":
             from .workflow import run_command
 
             return run_command(args)
-        return _check(args.files, args.json, args.junit)
+        if args.markdown and not args.against:
+            raise LayoutError("--markdown writes the comparison of --against",
+                              expected="--against REV as well, e.g. --against main")
+        return _check(args.files, args.json, args.junit, args.against, args.markdown)
     except LayoutError as error:  # the one place a script error becomes a message
         print(error, file=sys.stderr)
         return EXIT_ERROR
@@ -103,13 +117,15 @@ def _run(path: str, as_json: bool) -> int:
     return EXIT_OK if all(r.passed for r in checked) else EXIT_FAILED
 
 
-def _check(paths: Sequence[str], as_json: bool, junit: str | None = None) -> int:
+def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
+           against: str | None = None, markdown: str | None = None) -> int:
     from .reports.colour import paint, use_colour
 
     colour = use_colour(sys.stdout)
     status = EXIT_OK
     documents = []
     outcomes = []  # for --junit
+    reviews = []  # for --against: (path, review or None, summary)
     for path in paths:
         try:
             program, _, checked = _evaluate(path)
@@ -128,26 +144,58 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None) -> int
         failed = [r for r in checked if not r.passed]
         if failed and status == EXIT_OK:
             status = EXIT_FAILED
+        if against:
+            from .review.command import against_revision
+
+            reviews.append((path, *against_revision(path, against)))
         if as_json:
             from .reports.machine import check_json
 
             documents.append(check_json(program, checked))
+            if against:
+                from .review.render import as_json as review_json
+
+                found, said = reviews[-1][1:]
+                documents[-1]["against"] = {"revision": against, "summary": said, **(
+                    review_json(found, f"{against}:{path}", path) if found else {})}
             continue
         if failed:
-            print(f"{path}: {len(failed)} of {len(checked)} expectations "
-                  f"{paint('FAIL', 'bad', colour)}")
+            print(f"{path}: {len(failed)} of {len(checked)} expectation"
+                  f"{'s' if len(checked) != 1 else ''} {paint('FAIL', 'bad', colour)}")
             for result in failed:
                 e = result.expectation
                 print(f"  {e.span.file}:{e.span.line}:{e.span.column}: {result.outcome.message}")
+        elif not checked:
+            print(f"{path}: no expectations, nothing checked")
+        elif len(checked) == 1:
+            print(f"{path}: 1 expectation {paint('holds', 'good', colour)}")
         else:
             print(f"{path}: all {len(checked)} expectations {paint('hold', 'good', colour)}")
+        if against:
+            print(f"  {reviews[-1][2]}")
     if junit:
         from .workflow import write_junit
 
         if not write_junit(junit, outcomes):
+            return EXIT_ERROR
+    if markdown:
+        from .review.render import markdown_document
+
+        if not _write_text(markdown, markdown_document(reviews, against)):
             return EXIT_ERROR
     if as_json:
         from .reports.machine import dumps
 
         sys.stdout.write(dumps(documents))
     return status
+
+
+def _write_text(path: str, text: str) -> bool:
+    from pathlib import Path
+
+    try:
+        Path(path).write_text(text, encoding="utf-8")
+    except OSError as error:
+        print(f"error: cannot write {path}: {error.strerror or error}", file=sys.stderr)
+        return False
+    return True

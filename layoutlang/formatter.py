@@ -84,8 +84,9 @@ class FormatResult:
 def _tokens(text: str, file: str):
     """The script's syntax tree and every token the parser consumes (parsing the whole script
     first raises LayoutSyntaxError with file:line:column and a caret)."""
-    from .syntax.parser import parse, parser
+    from .syntax.parser import parse, parser, without_bom
 
+    text = without_bom(text)
     script = parse(text, file)
     source = text if text.endswith("\n") else text + "\n"
     interactive = parser().parse_interactive(source)

@@ -55,7 +55,7 @@ def unit_scale(unit: str, script_unit: str) -> tuple[float, int, int, bool]:
         return math.pi / 180.0, 0, 1, False
     if unit == "rad":
         return 1.0, 0, 1, False
-    if unit == "diopters":  # 1 diopter = 1 per metre
+    if unit in ("diopters", "diopter"):  # 1 diopter = 1 per metre
         return LENGTH_UNITS[script_unit] / 1000.0, -1, 0, False
     if unit == "%":
         return 0.01, 0, 0, True
@@ -71,6 +71,10 @@ class Measure:
     angle: int = 0
     bare: bool = True  # no unit was written anywhere in it
     relative: bool = False  # written as a percentage
+    #: how many `let` constants written without a unit are multiplied into a bare value
+    #: (divided: counted negative). Each may stand for a length in script units, so a bare
+    #: value with two or more (`D * p`) is not a length; literal numbers count 0 (`2 * sep`).
+    free: int = 0
 
     @property
     def dimension(self) -> tuple[int, int]:

@@ -41,6 +41,7 @@ class FirstOrderResults(FirstOrder):
 
     units: str = "mm"
 
+    @property
     def rows(self) -> list[tuple[str, str]]:
         """(quantity, value with unit or the reason there is none), in report order."""
         from .reports.text import first_order_rows
@@ -49,7 +50,7 @@ class FirstOrderResults(FirstOrder):
 
     def _repr_html_(self) -> str:
         body = "".join(f"<tr><td>{html.escape(n)}</td><td>{html.escape(v)}</td></tr>"
-                       for n, v in self.rows())
+                       for n, v in self.rows)
         return f"<table><tr><th>quantity</th><th>value</th></tr>{body}</table>"
 
     def _repr_latex_(self) -> str:
@@ -58,7 +59,7 @@ class FirstOrderResults(FirstOrder):
 
         lines = []
         for name in REPORT_ORDER:
-            value = self.values.get(name)
+            value = self.table.get(name)
             if value is None or isinstance(value, Unavailable):
                 continue
             kind = QUANTITIES[name].kind

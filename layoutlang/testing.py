@@ -10,7 +10,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_number"]
+__all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_number",
+           "with_unit", "unit_words"]
 
 
 def format_number(value: float, digits: int = 6) -> str:
@@ -34,8 +35,32 @@ class Outcome:
     message: str
 
 
-def _with_unit(value: float, unit: str) -> str:
-    return f"{format_number(value)} {unit}".rstrip()
+#: Unit words that have a singular: "1 diopter", "2 diopters"; "1 depth of focus".
+_SINGULAR = {"diopters": "diopter", "depths of focus": "depth of focus"}
+
+
+def unit_words(shown: str, unit: str) -> str:
+    """The unit word as it reads after the printed number `shown` (singular after 1)."""
+    if shown in ("1", "-1") and unit in _SINGULAR:
+        return _SINGULAR[unit]
+    return unit
+
+
+def with_unit(value: float, unit: str, digits: int = 6) -> str:
+    """A number and its unit as every report prints them ('1 diopter', '2.5 mm', '0.3')."""
+    shown = format_number(value, digits)
+    return f"{shown} {unit_words(shown, unit)}".rstrip()
+
+
+_with_unit = with_unit
+
+
+def _difference(actual: float, expected: float, digits: int = 6) -> float:
+    """actual − expected, or 0 when the two print the same (a difference below the display
+    precision is rounding noise, not news: no 'off by -5.68e-14')."""
+    if format_number(actual, digits) == format_number(expected, digits):
+        return 0.0
+    return actual - expected
 
 
 def compare(
@@ -68,7 +93,7 @@ def compare(
                     if relative else f"± {_with_unit(allowed, unit)}")
         detail = (f"{quantity} = {_with_unit(actual, unit)}, expected "
                   f"{_with_unit(expected, unit)} {tol_text}; off by "
-                  f"{_with_unit(actual - expected, unit)}")
+                  f"{_with_unit(_difference(actual, expected), unit)}")
     else:
         passed = {"<": actual < expected, "<=": actual <= expected,
                   ">": actual > expected, ">=": actual >= expected}[op]

@@ -13,7 +13,8 @@ from pathlib import Path
 from .cli import EXIT_ERROR, EXIT_FAILED, EXIT_OK
 from .errors import LayoutError
 
-__all__ = ["add_commands", "run_command", "write_junit", "DRAWING_FORMATS", "REPORT_FORMATS"]
+__all__ = ["add_commands", "run_command", "write_junit", "report_format", "DRAWING_FORMATS",
+           "REPORT_FORMATS"]
 
 DRAWING_FORMATS = ("svg", "png", "pdf")
 REPORT_FORMATS = ("md", "html", "latex")
@@ -35,8 +36,9 @@ def add_commands(commands) -> None:
                            "paraxially")
     report = commands.add_parser("report", help="one document: tables, checks and the drawing")
     report.add_argument("file", help="a layout script (.lay)")
-    report.add_argument("--format", choices=REPORT_FORMATS, default="md", dest="doc_format",
-                        help="document format (default md)")
+    report.add_argument("--format", choices=REPORT_FORMATS, default=None, dest="doc_format",
+                        help="document format (default: from the -o extension .md, .html/.htm "
+                             "or .tex; md on standard output)")
     report.add_argument("-o", "--output", metavar="OUT",
                         help="write the document here (the drawing goes beside it); default: "
                              "standard output")
@@ -104,9 +106,33 @@ def _draw(path: str, output: str, exact: bool = True) -> int:
     return EXIT_OK
 
 
-def _report(path: str, doc_format: str, output: str | None) -> int:
+#: Document formats by file extension, for `report -o` without `--format`.
+_REPORT_SUFFIXES = {"md": "md", "markdown": "md", "html": "html", "htm": "html",
+                    "tex": "latex", "latex": "latex"}
+
+
+def report_format(output: str | None, doc_format: str | None) -> str:
+    """The document format: as given, else from the output's extension, else Markdown.
+
+    Raises:
+        LayoutError: no format given and the extension names none.
+    """
+    if doc_format is not None:
+        return doc_format
+    if output is None:
+        return "md"
+    suffix = Path(output).suffix.lower().lstrip(".")
+    if suffix not in _REPORT_SUFFIXES:
+        raise LayoutError(f"cannot tell the document format of {output!r}",
+                          expected="--format md|html|latex, or a file name ending in .md, "
+                                   ".html or .tex")
+    return _REPORT_SUFFIXES[suffix]
+
+
+def _report(path: str, doc_format: str | None, output: str | None) -> int:
     from .reports.document import render_document
 
+    doc_format = report_format(output, doc_format)
     document = render_document(path, doc_format, output)
     if output is None:
         sys.stdout.write(document.text)

@@ -65,3 +65,28 @@ def test_importing_layoutlang_is_cheap() -> None:
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True)
     assert out.stdout.strip() == "[]"
+
+
+def test_results_behave_as_a_read_only_mapping() -> None:
+    results = layoutlang.evaluate(layoutlang.loads(BOUNDARY))
+    assert "image distance" in results and "efl" in results  # names and aliases
+    assert "no such quantity" not in results and 3 not in results
+    names = list(results)
+    assert names == list(results.keys()) and len(results) == len(names) > 10
+    assert "image distance" in names and "efl" not in names  # iteration gives canonical names
+    plain = dict(results)
+    assert plain["image distance"] == pytest.approx(100)
+    assert dict(results.items()) == plain and list(results.values()) == list(plain.values())
+    assert results.get("efl") == results["effective focal length"]
+    assert results.get("nothing", "absent") == "absent"
+    with pytest.raises(KeyError):
+        results["nothing"]
+
+
+def test_rows_is_a_property_and_there_are_no_stray_public_names() -> None:
+    results = layoutlang.evaluate(layoutlang.loads(BOUNDARY))
+    assert ("image height", "-0.666667 mm") in results.rows
+    fresh = subprocess.run([sys.executable, "-c", "import layoutlang; print(sorted(n for n in "
+                            "dir(layoutlang) if not n.startswith('_')))"],
+                           capture_output=True, text=True, check=True).stdout
+    assert eval(fresh) == sorted(n for n in layoutlang.__all__ if not n.startswith("_"))

@@ -200,3 +200,20 @@ def test_python_dash_m_and_no_sympy_for_numeric_checks(scripts) -> None:
     done = subprocess.run([sys.executable, "-m", "layoutlang", "check", scripts["failing"]],
                           capture_output=True, text=True, timeout=60)
     assert done.returncode == 1 and "1 of 3 expectations FAIL" in done.stdout
+
+
+def test_run_json_carries_the_setting(capsys) -> None:
+    import json
+    from pathlib import Path
+
+    from layoutlang.cli import main
+
+    example = Path(__file__).resolve().parent.parent / "examples" / "barcode_reader.lay"
+    main(["run", "--json", str(example)])
+    setting = json.loads(capsys.readouterr().out)["setting"]
+    assert setting["object"] == {"at_infinity": False, "distance_before_first_vertex": 300.0,
+                                 "height": 40.0}
+    assert setting["stop"] == {"after_boundary": None, "offset": -2.0, "size_kind": "diameter",
+                               "size": 10.0}
+    assert setting["image_plane"]["at_focus"] is True
+    assert "stop: 2 mm before the first boundary, diameter 10 mm" in setting["words"]

@@ -42,7 +42,7 @@ def test_sellmeier_by_hand_at_one_wavelength() -> None:
 
 def test_models_are_vectorized_and_agree_with_one_at_a_time() -> None:
     waves = np.array([0.4047, 0.4861, 0.5876, 0.6563, 0.8521])
-    models = [SILICA, d.Cauchy((1.5, 0.004, 0.0001)), d.ModelGlass(1.62, 36.4),
+    models = [SILICA, d.Cauchy((1.5, 0.004, 0.0001)), d.GlassFromNdVd(1.62, 36.4),
               d.Table((0.4, 0.5, 0.7, 0.9), (1.53, 1.52, 1.51, 1.505)), d.StandardAir()]
     for model in models:
         together = model.index(waves)
@@ -56,7 +56,7 @@ def test_cauchy_is_a_series_in_inverse_square_wavelength() -> None:
 
 
 def test_model_glass_meets_nd_abbe_number_and_the_normal_line() -> None:
-    glass = d.ModelGlass(1.517, 64.2)
+    glass = d.GlassFromNdVd(1.517, 64.2)
     nd, nf, nc, ng = (glass.index(LINES_UM[k]) for k in ("d", "F", "C", "g"))
     assert nd == pytest.approx(1.517, abs=1e-12)
     assert (nd - 1) / (nf - nc) == pytest.approx(64.2, abs=1e-9)
@@ -72,7 +72,7 @@ def test_glass_code_convention_both_ways() -> None:
     assert d.parse_glass_code("620364.360") == (pytest.approx(1.620), pytest.approx(36.4))
     assert d.glass_code(1.5168, 64.17) == "517642"
     assert d.glass_code(1.45846, 67.82) == "458678"
-    model = d.ModelGlass.from_code("517642")
+    model = d.GlassFromNdVd.from_code("517642")
     assert (model.nd, model.vd, model.code) == (1.517, 64.2, "517642")
 
 

@@ -140,3 +140,122 @@ def test_a_layout_that_cannot_be_drawn_still_gets_its_report(tmp_path: Path) -> 
     text = render_document(str(path), "md", str(tmp_path / "r.md")).text
     assert "## Drawing" not in text and "Note: no drawing: this layout cannot be drawn" in text
     assert not (tmp_path / "r-drawing.svg").exists()
+
+
+# --- everything `run` prints, a summary at the top, the format from the file name -------------
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _requested(example: str):
+    from layoutlang.checks import evaluate_program
+    from layoutlang.interpret.interpreter import load_file
+    from layoutlang.reports.text import requested_blocks
+
+    program = load_file(ROOT / "examples" / example)
+    results, _ = evaluate_program(program)
+    return requested_blocks(program, results)
+
+
+@pytest.mark.parametrize("example", ["label_reader_objective.lay", "cemented_achromat.lay"])
+def test_documents_carry_every_section_the_text_report_prints(example: str) -> None:
+    import html as html_module
+
+    from layoutlang.cli import main  # noqa: F401  (the same core as `run`)
+    from layoutlang.reports.blocks import Heading, Line, Table
+
+    blocks = _requested(example)
+    kinds = {type(b) for b in blocks}
+    assert {Heading, Line, Table} <= kinds  # exact rays / Seidel / colour sections exist
+    path = str(ROOT / "examples" / example)
+    md = render_document(path, "md").text
+    page = render_document(path, "html").text
+    tex = render_document(path, "latex").text
+    for block in blocks:
+        if isinstance(block, (Heading, Line)):
+            assert block.text in md
+            assert html_module.escape(block.text) in page
+            assert tex_escape(block.text) in tex
+        else:  # every row of every table is a row of a real table in each document
+            for row in block.rows:
+                assert "| " + " | ".join(c.replace("|", "\\|") for c in row) + " |" in md
+                assert "<tr>" + "".join(
+                    f"<{'th' if block.header and row is block.rows[0] else 'td'}>"
+                    f"{html_module.escape(c)}</{'th' if block.header and row is block.rows[0] else 'td'}>"
+                    for c in row) + "</tr>" in page
+                cells = [r"\textbf{" + tex_escape(c) + "}" if block.header and row is block.rows[0]
+                         else tex_escape(c) for c in row]
+                assert " & ".join(cells) + r" \\" in tex
+
+
+def test_the_seidel_and_colour_tables_are_tables_in_the_documents() -> None:
+    path = str(ROOT / "examples" / "label_reader_objective.lay")
+    md = render_document(path, "md").text
+    assert "| boundary | S I spherical | S II coma |" in md and "| total |" in md
+    page = render_document(str(ROOT / "examples" / "cemented_achromat.lay"), "html").text
+    assert "<th>wavelength</th><th>focal length</th>" in page
+
+
+def test_a_pass_or_fail_summary_opens_every_document(script: Path) -> None:
+    md = render_document(str(script), "md").text.splitlines()
+    assert md[2] == "**1 of 3 expectations FAIL (line 10).**"
+    page = render_document(str(script), "html").text
+    assert page.index("1 of 3 expectations FAIL") < page.index("<h2>")
+    tex = render_document(str(script), "latex").text
+    assert tex.index("1 of 3 expectations FAIL") < tex.index(r"\subsection*")
+    good = render_document(str(ROOT / "examples" / "label_reader_objective.lay"), "md").text
+    assert good.splitlines()[2] == "**All 10 expectations hold.**"
+
+
+@pytest.mark.parametrize("name, marker", [("out.html", "<!DOCTYPE html>"),
+                                          ("out.htm", "<!DOCTYPE html>"),
+                                          ("out.tex", r"\documentclass"),
+                                          ("out.md", "# Relay lens")])
+def test_the_format_comes_from_the_output_extension(script: Path, tmp_path: Path, name: str,
+                                                    marker: str) -> None:
+    from layoutlang.cli import main
+
+    out = tmp_path / name
+    assert main(["report", str(script), "-o", str(out)]) == 1  # one expectation fails
+    assert out.read_text(encoding="utf-8").startswith(marker)
+
+
+def test_an_unknown_output_extension_without_format_is_an_error(script: Path, tmp_path: Path,
+                                                                 capsys) -> None:
+    from layoutlang.cli import main
+
+    assert main(["report", str(script), "-o", str(tmp_path / "out.txt")]) == 2
+    err = capsys.readouterr().err
+    assert "cannot tell the document format" in err and ".tex" in err
+    # --format still wins over the extension
+    assert main(["report", str(script), "--format", "html", "-o",
+                 str(tmp_path / "out.txt")]) == 1
+    assert (tmp_path / "out.txt").read_text(encoding="utf-8").startswith("<!DOCTYPE html>")
+
+
+def test_latex_keeps_negative_numbers_whole_and_never_hyphenates() -> None:
+    assert tex_escape("-38.52 mm") == r"\mbox{$-$38.52} mm"
+    assert tex_escape("radius -0.5 mm") == r"radius \mbox{$-$0.5} mm"
+    assert tex_escape("real - paraxial") == "real - paraxial"  # an operator, not a sign
+    assert tex_escape("3.633e-5") == "3.633e-5"  # inside a number
+    assert tex_escape("f-number") == "f-number"
+    tex = render_document(str(ROOT / "examples" / "label_reader_objective.lay"), "latex").text
+    assert r"\hyphenpenalty=10000 \exhyphenpenalty=10000" in tex
+    assert r"\mbox{$-$38.52} mm" in tex  # the layout table's radius
+    assert "p{0.3\\linewidth}" in tex and r"\raggedright" in tex
+
+
+def test_positions_say_from_where() -> None:
+    from layoutlang.reports.text import describe_value
+
+    assert describe_value("front principal point", 11.147, "mm") == \
+        "11.147 mm after the first vertex"
+    assert describe_value("back principal point", -4.298, "mm") == \
+        "-4.298 mm  (4.298 mm before the last vertex)"
+    assert describe_value("entrance pupil position", 0.0, "mm") == "0 mm  (at the first vertex)"
+    assert describe_value("back focal distance", 95.7, "mm") == \
+        "95.7 mm  (back focal point after the last vertex)"
+    assert describe_value("front focal distance", -2.0, "mm") == \
+        "-2 mm  (front focal point 2 mm after the first vertex)"
+    md = render_document(str(ROOT / "examples" / "label_reader_objective.lay"), "md").text
+    assert "| front principal point | 1.2719 mm after the first vertex |" in md

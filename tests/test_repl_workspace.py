@@ -79,7 +79,7 @@ def test_expectations_are_re_evaluated_and_their_change_of_state_shown(relay: Wo
     out = relay.run("change front radius to 40")
     assert "now     FAILS (was holds): expect focal length = focal_goal ± 0.5" in out
     out = relay.run("change focal_goal to 70")  # a constant the expectation uses
-    assert "no first-order quantity changed" in out
+    assert "no shown quantity changed" in out
     assert "now     holds (was FAILS): expect focal length = focal_goal ± 0.5" in out
     out = relay.run("undo")
     assert "now     FAILS (was holds)" in out

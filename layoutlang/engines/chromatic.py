@@ -208,7 +208,7 @@ def _labels(system: System) -> list[str]:
     found = []
     for w in system.wavelengths:
         nm = float(to_nanometres(w.value, system.units))
-        found.append(line_letter(nm) or f"{nm:g} nm")
+        found.append(line_letter(nm, system.environment) or f"{nm:g} nm")
     return found
 
 

@@ -10,6 +10,7 @@ so no report ever prints inf or NaN.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
 from typing import Any
 
@@ -45,29 +46,53 @@ def _is_zero(value: float, scale: float) -> bool:
 
 
 @dataclass(frozen=True)
-class FirstOrder:
-    """Every first-order property of one layout (see `quantities.py` for the names)."""
+class FirstOrder(Mapping):
+    """Every first-order property of one layout (see `quantities.py` for the names).
 
-    values: dict[str, Value]
+    A read-only mapping from quantity name to value (a number, or `Unavailable` with the
+    reason): `"focal length" in results`, `results["efl"]` (aliases too), `list(results)`,
+    `dict(results)`, `len(results)`, `keys()`, `items()`, `values()`, `get(name)`. Iterating
+    gives the canonical names the engine computed.
+    """
+
+    table: dict[str, Value]
     afocal: bool
     notes: tuple[str, ...] = ()
 
-    def __getitem__(self, name: str) -> Value:
-        try:
-            return self.values[name]
-        except KeyError:
-            pass
-        from ..errors import LayoutNameError  # the error path only
-        from ..quantities import ALIASES, suggestion
+    def _canonical(self, name: str) -> str | None:
+        if name in self.table:
+            return name
+        from ..quantities import ALIASES
 
-        if ALIASES.get(name) in self.values:
-            return self.values[ALIASES[name]]
-        close = suggestion(name)
+        alias = ALIASES.get(name)
+        return alias if alias in self.table else None
+
+    def __getitem__(self, name: str) -> Value:
+        found = self._canonical(name) if isinstance(name, str) else None
+        if found is not None:
+            return self.table[found]
+        from ..errors import LayoutNameError  # the error path only
+        from ..quantities import suggestion
+
+        close = suggestion(name) if isinstance(name, str) else None
         raise LayoutNameError(
             f"{name!r} is not a first-order quantity",
-            hint=(f"did you mean {close!r}? " if close and close in self.values else "")
+            hint=(f"did you mean {close!r}? " if close and close in self.table else "")
             + "exact-ray, Seidel and colour quantities are evaluated by a script's 'expect' "
               "and 'report' lines (layoutlang.check, layoutlang run)")
+
+    def __contains__(self, name: object) -> bool:
+        return isinstance(name, str) and self._canonical(name) is not None
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self.table)
+
+    def __len__(self) -> int:
+        return len(self.table)
+
+    def get(self, name: str, default: Value | None = None) -> Value | None:
+        found = self._canonical(name) if isinstance(name, str) else None
+        return default if found is None else self.table[found]
 
 
 def _finite(values: dict[str, Value]) -> dict[str, Value]:

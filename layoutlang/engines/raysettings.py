@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["RaySettings"]
+__all__ = ["RaySettings", "RayRequest"]
 
 
 @dataclass(frozen=True)
@@ -21,3 +21,15 @@ class RaySettings:
     fields: tuple[float, ...] = (0.0, 0.5, 0.7071, 1.0)
     grid: int = 17
     tolerance: float | None = None
+
+
+@dataclass(frozen=True)
+class RayRequest:
+    """One ray quantity a `report` names with its qualifiers: the field fraction (None where
+    the quantity has no field), the wavelength in layout units (None: the primary) and the
+    label as the script wrote it ('rms spot radius at field 3 deg')."""
+
+    name: str
+    field: float | None = None
+    wavelength: float | None = None
+    label: str = ""

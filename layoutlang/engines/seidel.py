@@ -163,7 +163,8 @@ def colour_ends(system: System) -> tuple[float, float] | None:
     from ..materials.lines import colour_pair
     from ..measure import from_nanometres, to_nanometres
 
-    pair = colour_pair(to_nanometres(float(w.value), system.units) for w in system.wavelengths)
+    pair = colour_pair((to_nanometres(float(w.value), system.units) for w in system.wavelengths),
+                       system.environment)
     if pair is None:
         return None
     return from_nanometres(pair[1], system.units), from_nanometres(pair[2], system.units)

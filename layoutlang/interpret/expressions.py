@@ -130,7 +130,8 @@ class ExpressionEvaluator:
     # -x
     def _negate(self, node: t.Negate) -> Measure:
         inner = self.evaluate(node.operand)
-        return Measure(-inner.value, inner.length, inner.angle, inner.bare, inner.relative)
+        return Measure(-inner.value, inner.length, inner.angle, inner.bare, inner.relative,
+                       inner.free)
 
     # a + b, a - b, a * b, a / b, a ^ b
     def _binary(self, node: t.Binary) -> Measure:
@@ -140,18 +141,23 @@ class ExpressionEvaluator:
         if op in "+-":
             dims = self._common_dimension(left, right, node)
             value = left.value + right.value if op == "+" else left.value - right.value
-            return Measure(value, *dims, bare=left.bare and right.bare, relative=relative)
+            bare = left.bare and right.bare
+            free = max(left.free, right.free, key=abs) if bare else 0
+            return Measure(value, *dims, bare=bare, relative=relative, free=free)
+        # a product stays bare (its dimension still open) while every factor is bare or a
+        # plain number with no dimension: 2 * sep * tan(0.25 deg) is a length like sep
+        bare = (left.bare or right.bare) and left.dimension == right.dimension == (0, 0)
         if op == "*":
             return Measure(
                 left.value * right.value, left.length + right.length, left.angle + right.angle,
-                left.bare and right.bare, relative,
+                bare, relative, left.free + right.free if bare else 0,
             )
         if op == "/":
             if _is_zero(right.value):
                 raise LayoutValueError("division by zero", self.span(node.right))
             return Measure(
                 left.value / right.value, left.length - right.length, left.angle - right.angle,
-                left.bare and right.bare, relative,
+                bare, relative, left.free - right.free if bare else 0,
             )
         # power: the exponent is a plain number; a dimensioned base needs a whole exponent
         if right.dimension != (0, 0):
@@ -174,7 +180,7 @@ class ExpressionEvaluator:
         exponent = int(right.value) if self.backend.is_integer(right.value) else 1
         return Measure(
             left.value ** right.value, left.length * exponent, left.angle * exponent,
-            left.bare, relative,
+            left.bare, relative, left.free * exponent if left.bare else 0,
         )
 
     # sqrt(x), sin(30 deg), atan(0.1)
@@ -207,11 +213,12 @@ class ExpressionEvaluator:
                 raise LayoutValueError("square root of a negative number", self.span(node))
             return Measure(
                 self.backend.apply("sqrt", argument.value), argument.length // 2,
-                argument.angle // 2, argument.bare, argument.relative,
+                argument.angle // 2, argument.bare, argument.relative, argument.free // 2,
             )
         value = self.backend.apply(node.func, argument.value)
         if gives == "same":
-            return Measure(value, argument.length, argument.angle, argument.bare)
+            return Measure(value, argument.length, argument.angle, argument.bare,
+                           free=argument.free)
         if gives == "angle":
             return Measure(value, 0, 1, bare=False)
         return Measure(value, bare=argument.bare and argument.dimension == (0, 0))

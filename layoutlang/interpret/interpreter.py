@@ -51,6 +51,7 @@ class Expectation:
     request: Any = None  # colour quantities and `at wavelength`: engines.chromatic.Request
     scale: str = ""  # 'depth of focus' when the value is in depths of focus
     wavelength: float | None = None  # ray quantities: the wavelength (layout units), else primary
+    label: str = ""  # ray quantities: the quantity with its field and wavelength as written
 
 
 @dataclass(frozen=True)
@@ -65,6 +66,7 @@ class Program:
     names: dict[str, Measure] = field(default_factory=dict, compare=False)
     rays: RaySettings = RaySettings()  # what `report exact rays` samples (raystatements.py)
     ray_reports: tuple[str, ...] = ()  # 'exact rays', 'seidel sums', in script order
+    ray_requests: tuple = ()  # raysettings.RayRequest: `report Q at field F [at wavelength W]`
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
@@ -142,6 +144,14 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
 
     def length(self, node: t.Expr, what: str) -> Any:
         measure = self.value(node)
+        if measure.bare and measure.free >= 2:
+            raise LayoutUnitError(
+                f"{what} must be a length, but this multiplies {measure.free} constants "
+                "written without a unit: if each is a length, the product is not one",
+                self.span(node), expected="a length",
+                hint="give the constants their units ('let D = 25 mm'), so the dimensions "
+                     "are checked; a plain factor may stay without one ('let ratio = 0.5' "
+                     "times a length with a unit)")
         if measure.bare or measure.dimension == (1, 0):
             return measure.value
         raise LayoutUnitError(
@@ -244,13 +254,16 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
 
     def statement_Title(self, node: t.Title) -> None:
         """layout "text" """
-        self.title = node.text
+        self.once(getattr(self, "title_node", None), node, "the title")
+        self.title, self.title_node = node.text, node
 
     def statement_Units(self, node: t.Units) -> None:
         """units mm"""
         if node.unit.text not in LENGTH_UNITS:
             raise LayoutUnitError(f"unknown length unit {node.unit.text!r}", self.span(node.unit),
                                   expected="one of " + ", ".join(LENGTH_UNITS))
+        self.once(getattr(self, "units_node", None), node, "the length unit")
+        self.units_node = node
         if self.units_fixed_by is not None:
             raise LayoutValueError(
                 "units must come before any length is used "
@@ -267,7 +280,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
         if node.name.text in self.names:
             raise LayoutNameError(f"{node.name.text!r} is already defined", self.span(node.name))
         self._fix_units(node)
-        self.names[node.name.text] = self.value(node.value)
+        value = self.value(node.value)
+        if value.bare and value.free == 0:  # a constant without a unit: it may be a length
+            from dataclasses import replace
+
+            value = replace(value, free=1)
+        self.names[node.name.text] = value
 
     def statement_MediumIndex(self, node: t.MediumIndex) -> None:
         """medium NAME index N"""
@@ -290,6 +308,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
     def statement_ObjectAtInfinity(self, node: t.ObjectAtInfinity) -> None:
         """object at infinity[, field angle A]"""
         self.once(self.object_node, node, "the object")
+        if node.height is not None:
+            raise LayoutValueError(
+                "an object at infinity has no height: its size is the field angle it "
+                "subtends", self.span(node.height),
+                expected="'object at infinity, field angle 5 deg'",
+                hint="for an object at a finite distance write 'object 250 before, height 4'")
         angle = 0.0
         if node.field_angle is not None:
             angle = self.angle(node.field_angle, "a field angle")
@@ -303,8 +327,31 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
         self.once(self.object_node, node, "the object")
         self._fix_units(node)
         distance = self.length(node.distance, "the object distance")
+        if node.field_angle is not None:
+            raise LayoutValueError(
+                "an object at a finite distance is sized by its height, not by a field angle",
+                self.span(node.field_angle), expected="'object 250 before, height 4'",
+                hint=self._height_for_angle(node) or "for a distant object write 'object at "
+                     "infinity, field angle 5 deg'")
         height = 0.0 if node.height is None else self.length(node.height, "the object height")
         self.object, self.object_node = ObjectSpec(distance, height, 0.0), node
+
+    def _height_for_angle(self, node: t.ObjectBefore) -> str | None:
+        """The height that subtends the written field angle at the first vertex, as a hint."""
+        try:
+            distance = float(self.length(node.distance, "the object distance"))
+            angle = float(self.angle(node.field_angle, "a field angle"))
+        except (LayoutValueError, LayoutUnitError, TypeError):
+            return None
+        if not (distance > 0 and 0 < abs(angle) < math.pi / 2):
+            return None
+        from ..testing import format_number
+
+        height = format_number(distance * math.tan(angle), 4)
+        from ..syntax.unparse import expression_text
+
+        return (f"{expression_text(node.field_angle)} seen from the first vertex at this distance is "
+                f"a height of {height} {self.units}: write ', height {height}'")
 
     def statement_BoundaryStatement(self, node: t.BoundaryStatement) -> None:
         """surface [NAME] radius R | curvature C | flat [into MEDIUM][, clear diameter D]
@@ -414,8 +461,14 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
                                       expected="a wavelength such as 587.6 nm or 0.5876 um")
             self.positive(measure.value, item.value, "a wavelength")
             items.append(Wavelength(measure.value, item.primary))
+        self.once(getattr(self, "wavelengths_node", None), node, "the list of wavelengths")
+        self.wavelengths_node = node
         if sum(w.primary for w in items) > 1:
             raise LayoutValueError("only one wavelength can be primary", self.span(node))
+        for i, item in enumerate(items):
+            if any(_same_number(item.value, other.value) for other in items[:i]):
+                raise LayoutValueError("this wavelength is listed twice",
+                                       self.span(node.items[i].value))
         self.wavelengths = tuple(items)
 
     def statement_Expect(self, node: t.Expect) -> None:
@@ -518,9 +571,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
         for node, (self.file, self.lines) in self.expect_nodes:
             expectations.append(self.expectation(node))
         expectations = tuple(expectations)
+        ray_requests = self.ray_requests()
+        self.refuse_unused_ray_settings(expectations, ray_requests)
         return self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports), tuple(self.hazards),
             dict(self.names), rays=rays, ray_reports=self.ray_reports(),
+            ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
             quality=quality))
 
@@ -575,7 +631,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
         info = self.quantity(node.quantity)
         convert = self.converter(info.kind, "the expected value")
         expected = convert(node.value)
-        tolerance, relative = self.tolerance(node, convert)
+        tolerance, relative = self.tolerance(node, self.converter(info.kind, "the tolerance"))
         span = self.span(node)
         return Expectation(info.name, info.kind, node.op, expected, tolerance, relative, span,
                            span.line_text.strip(), request=request)
@@ -598,12 +654,26 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
         if node.op != "=":
             raise LayoutValueError("a tolerance only goes with '='", self.span(node.tolerance))
         measure = self.value(node.tolerance.value)
+        if node.tolerance.kind == "within" and measure.bare:
+            written = _literal(node.tolerance.value)
+            raise LayoutUnitError(
+                "a 'within' tolerance needs '%' or a unit", self.span(node.tolerance.value),
+                expected=f"'within {written}%' (relative) or 'within {written} "
+                         f"{self.units}' (absolute)",
+                hint=f"'± {written}' is an absolute tolerance in the quantity's own unit")
         if measure.relative and percent_allowed:
             tolerance, relative = measure.value, True
         else:
             tolerance, relative = convert(node.tolerance.value), False
         self.positive(tolerance, node.tolerance.value, "a tolerance", allow_zero=True)
         return tolerance, relative
+
+
+def _same_number(a: Any, b: Any) -> bool:
+    try:
+        return bool(abs(a - b) <= 1e-12 * abs(a))
+    except TypeError:  # symbolic values: equal only when identical
+        return a == b
 
 
 def _literal(node: t.Expr) -> str:

@@ -14,7 +14,7 @@ from typing import Any
 from ..errors import LayoutNameError, LayoutUnitError, LayoutValueError
 from ..measure import Measure, from_nanometres, to_nanometres
 from ..materials.lines import SPECTRAL_LINES, line_letter
-from ..quantities import REPORT_ORDER, lookup
+from ..quantities import RAY_QUANTITIES, REPORT_ORDER, lookup
 from ..syntax import tree as t
 from ..system import System, Wavelength
 
@@ -122,6 +122,8 @@ class MaterialStatements:
     def statement_QualifiedReport(self, node: t.QualifiedReport) -> None:
         """report QUANTITY of MEDIUM | at wavelength W | between W and W | across W, W and W"""
         self.quantity(node.quantity)  # unknown names fail here, where they are written
+        if self.report_ray_qualified(node):  # a spot radius at a wavelength (raystatements.py)
+            return
         self._materials()["reports"].append((node, (self.file, self.lines)))
 
     def report_chromatic(self, node: t.Report) -> bool:
@@ -160,7 +162,21 @@ class MaterialStatements:
             raise LayoutNameError(
                 f"{name!r} is both a spectral line and a name defined with 'let'",
                 self.span(node), hint="rename the constant, or write the wavelength in nm")
-        return from_nanometres(SPECTRAL_LINES[name], self.units)
+        return self._line(name)
+
+    def _environment(self) -> str:
+        """The surroundings the script states (standard air unless it says vacuum)."""
+        node = self._materials()["surroundings"]
+        if node is None:  # a line letter may come before the `layout in ...` line
+            node = next((s for s in self.script.statements if isinstance(s, t.Surroundings)),
+                        None)
+        return node.environment if node is not None else "standard air"
+
+    def _line(self, letter: str) -> float:
+        """A spectral line's wavelength in layout units, as measured in the surroundings."""
+        from ..materials.lines import line_nm
+
+        return from_nanometres(line_nm(letter, self._environment()), self.units)
 
     def _resolve_ref(self, ref: t.WavelengthRef) -> tuple[float, str]:
         """(value in layout units, label) of a wavelength named in a qualifier."""
@@ -218,12 +234,12 @@ class MaterialStatements:
             options["reference"] = node.relative_to
         name = node.name.text
         options["source"] = name
-        if node.kind == "model glass":
+        if node.kind == "nd and abbe number":
             index = self._plain(node.values[0], "a refractive index")
             abbe = self._plain(node.values[1], "an Abbe number")
-            return d.ModelGlass(index, abbe, **options)
+            return d.GlassFromNdVd(index, abbe, **options)
         if node.kind == "glass code":
-            return d.ModelGlass.from_code(node.code, **options)
+            return d.GlassFromNdVd.from_code(node.code, **options)
         if node.kind == "sellmeier":
             strengths = [self._plain(b, "a Sellmeier B") for b, _ in node.pairs]
             constant = 1.0 if node.constant is None else self._plain(node.constant,
@@ -277,7 +293,7 @@ class MaterialStatements:
         environment = node.environment if node is not None else STANDARD_AIR
         wavelengths = system.wavelengths
         if not wavelengths:
-            d_line = from_nanometres(SPECTRAL_LINES["d"], system.units)
+            d_line = self._line("d")
             wavelengths = (Wavelength(d_line, True),)
             state["default_wavelength"] = True
         system = replace(system, wavelengths=wavelengths, environment=environment)
@@ -311,6 +327,8 @@ class MaterialStatements:
         qualifiers = getattr(node, "qualifiers", ())
         info = lookup(node.quantity.text)
         if info is None or not qualifiers and info.name not in CHROMATIC_QUANTITIES:
+            return None
+        if info.name in RAY_QUANTITIES:  # `at wavelength W` of a spot: the ray path takes it
             return None
         return self.colour_request(info.name, qualifiers, node, self._materials()["system"])
 
@@ -347,7 +365,7 @@ class MaterialStatements:
             return tuple(v for v, _ in resolved), tuple(label for _, label in resolved)
 
         def lines(*letters: str) -> tuple[tuple[float, ...], tuple[str, ...]]:
-            return tuple(from_nanometres(SPECTRAL_LINES[k], self.units) for k in letters), letters
+            return tuple(self._line(k) for k in letters), letters
 
         def allow(*kinds: str) -> None:
             for kind, qualifier in found.items():
@@ -399,7 +417,7 @@ class MaterialStatements:
 
     def _label(self, value: float) -> str:
         nm = to_nanometres(value, self.units)
-        return line_letter(nm) or f"{nm:g} nm"
+        return line_letter(nm, self._environment()) or f"{nm:g} nm"
 
     def _extremes(self, system: System, node: t.Node, name: str):
         waves = sorted(w.value for w in system.wavelengths)
@@ -457,17 +475,18 @@ class MaterialStatements:
         primary = system.primary_wavelength
         # the Abbe numbers of the condition are taken over F and C (or F' and C') whenever the
         # layout lists them, as the trade does; otherwise over its shortest and longest
-        pair = colour_pair(to_nanometres(w.value, self.units) for w in system.wavelengths)
+        pair = colour_pair((to_nanometres(w.value, self.units) for w in system.wavelengths),
+                           self._environment())
         if pair is not None and (pair[0] is not None or len(system.wavelengths) >= 3):
             middle, blue, red = pair
             blue, red = from_nanometres(blue, self.units), from_nanometres(red, self.units)
             if primary is not None and blue < primary.value < red:
                 centre = primary.value
             else:
-                centre = from_nanometres(SPECTRAL_LINES[middle or "d"], self.units)
+                centre = self._line(middle or "d")
             chosen = (blue, centre, red)
         else:
-            chosen = tuple(from_nanometres(SPECTRAL_LINES[k], self.units) for k in ("F", "d", "C"))
+            chosen = tuple(self._line(k) for k in ("F", "d", "C"))
         indices = []
         for name, ident in zip(names, (node.first, node.second)):
             model, _ = self._materials()["models"].get(name, (None, None))

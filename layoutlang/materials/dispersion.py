@@ -12,9 +12,9 @@ The formulas, with λ in micrometres:
                      n² = A + Σ Bᵢ λ² / (λ² − λᵢ²)    (λᵢ resonance wavelengths in µm; Cᵢ = λᵢ²)
                      A is 1 in the usual form.
 - Cauchy:            n = A₀ + A₁/λ² + A₂/λ⁴ + ...
-- model glass:       a three-term Cauchy formula fitted to nd, the Abbe number νd and the
-                     partial dispersion of the normal line, P(g,F) = 0.6438 − 0.001682 νd
-                     (the "normal glass" line, from memory), so two model glasses have a
+- glass from nd and νd: a three-term Cauchy formula fitted to nd, the Abbe number νd and
+                     the partial dispersion of the normal line, P(g,F) = 0.6438 − 0.001682 νd
+                     (the "normal glass" line, from memory), so two such glasses have a
                      realistic secondary spectrum. From nd and νd or the six-digit glass code.
 - table:             rows of (λ, n), linear in 1/λ² between neighbouring rows (exact at rows).
 - standard air:      Ciddor (1996), Appl. Opt. 35, 1566: dry air, 15 °C, 101 325 Pa,
@@ -33,7 +33,7 @@ import numpy as np
 from .lines import SPECTRAL_LINES
 
 __all__ = [
-    "DispersionError", "Dispersion", "Constant", "Sellmeier", "Cauchy", "ModelGlass",
+    "DispersionError", "Dispersion", "Constant", "Sellmeier", "Cauchy", "GlassFromNdVd", "ModelGlass",
     "Table", "StandardAir", "glass_code", "parse_glass_code", "abbe_number",
     "partial_dispersion", "outside_range", "range_warning", "AIR", "VACUUM", "NORMAL_LINE",
 ]
@@ -181,7 +181,7 @@ class Cauchy(Dispersion):
 
 
 @dataclass(frozen=True)
-class ModelGlass(Dispersion):
+class GlassFromNdVd(Dispersion):
     """A glass known only by nd and νd, with a normal-line partial dispersion.
 
     The index follows n = A₀ + A₁/λ² + A₂/λ⁴, solved so that n(d) = nd, n(F) − n(C) =
@@ -192,14 +192,14 @@ class ModelGlass(Dispersion):
     vd: float
     valid_um: tuple[float, float] | None = (0.365, 1.014)
     reference: str | None = AIR
-    source: str = "model glass"
+    source: str = "glass from nd and νd"
     code: str = ""
 
     def __post_init__(self) -> None:
         if not (self.nd > 1.0 and math.isfinite(self.nd)):
-            raise DispersionError("a model glass needs a refractive index above 1")
+            raise DispersionError("a glass from nd and νd needs a refractive index above 1")
         if not (self.vd > 0 and math.isfinite(self.vd)):
-            raise DispersionError("a model glass needs a positive Abbe number")
+            raise DispersionError("a glass from nd and νd needs a positive Abbe number")
 
     @property
     def coefficients(self) -> tuple[float, float, float]:
@@ -214,16 +214,19 @@ class ModelGlass(Dispersion):
     def index(self, wavelength_um: Wavelengths) -> Any:
         a0, a1, a2 = self.coefficients
         inverse2 = 1.0 / _array(wavelength_um) ** 2
-        return _finish(a0 + inverse2 * (a1 + inverse2 * a2), wavelength_um, "this model glass")
+        return _finish(a0 + inverse2 * (a1 + inverse2 * a2), wavelength_um, "this glass from nd and νd")
 
     @classmethod
-    def from_code(cls, code: str, **options) -> ModelGlass:
+    def from_code(cls, code: str, **options) -> GlassFromNdVd:
         nd, vd = parse_glass_code(code)
         return cls(nd, vd, code=code.split(".")[0], **options)
 
     def describe(self) -> str:
         code = f"glass code {self.code}: " if self.code else ""
-        return f"{code}model glass, nd {self.nd:g}, Abbe number {self.vd:g}"
+        return f"{code}glass from nd {self.nd:g} and Abbe number {self.vd:g}"
+
+
+ModelGlass = GlassFromNdVd  # the former name, for code written against it
 
 
 @dataclass(frozen=True)

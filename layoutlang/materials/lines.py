@@ -8,7 +8,7 @@ letter is written with an apostrophe: F' and C' (the cadmium lines used with the
 from __future__ import annotations
 
 __all__ = ["SPECTRAL_LINES", "LINE_SOURCES", "line_nm", "is_line", "line_letter",
-           "colour_pair"]
+           "colour_pair", "in_vacuum_nm"]
 
 #: letter → wavelength in nm (standard air).
 SPECTRAL_LINES: dict[str, float] = {
@@ -40,17 +40,38 @@ def is_line(letter: str) -> bool:
     return letter in SPECTRAL_LINES
 
 
-def line_nm(letter: str) -> float:
-    """The wavelength of a spectral line in nm; KeyError for an unknown letter."""
+def in_vacuum_nm(air_nm: float) -> float:
+    """The vacuum wavelength of light whose wavelength in standard air is `air_nm`:
+    λ_vacuum = λ_air · n_air(λ_vacuum), n_air from Ciddor (1996) (`dispersion.StandardAir`,
+    which takes vacuum wavelengths), solved by fixed-point steps (n_air − 1 ≈ 3e-4, so three
+    steps agree to far below 1e-9 nm)."""
+    from .dispersion import StandardAir
+
+    air = StandardAir()
+    vacuum = air_nm
+    for _ in range(4):
+        vacuum = air_nm * float(air.index(vacuum / 1000.0))
+    return vacuum
+
+
+def line_nm(letter: str, environment: str = "standard air") -> float:
+    """The wavelength of a spectral line in nm, as measured in the layout's surroundings
+    (the table is in standard air; `layout in vacuum` takes the vacuum wavelength of the same
+    line); KeyError for an unknown letter."""
+    if environment == "vacuum":
+        return in_vacuum_nm(SPECTRAL_LINES[letter])
     return SPECTRAL_LINES[letter]
 
 
-def line_letter(nanometres: float) -> str | None:
-    """The letter of the spectral line at this wavelength, if it is one."""
-    return next((k for k, v in SPECTRAL_LINES.items() if abs(v - nanometres) < 5e-5), None)
+def line_letter(nanometres: float, environment: str = "standard air") -> str | None:
+    """The letter of the spectral line at this wavelength (in the layout's surroundings), if
+    it is one."""
+    return next((k for k in SPECTRAL_LINES
+                 if abs(line_nm(k, environment) - nanometres) < 5e-5), None)
 
 
-def colour_pair(wavelengths_nm) -> tuple[str | None, float, float] | None:
+def colour_pair(wavelengths_nm, environment: str = "standard air"
+                ) -> tuple[str | None, float, float] | None:
     """The blue and red ends colour is measured between, from a layout's wavelengths (nm).
 
     The trade's pairs come first: F and C (around d), then F' and C' (around e), whenever both
@@ -62,9 +83,9 @@ def colour_pair(wavelengths_nm) -> tuple[str | None, float, float] | None:
         return None
 
     def listed(letter: str) -> bool:
-        return any(abs(w - SPECTRAL_LINES[letter]) <= 1e-6 * w for w in values)
+        return any(abs(w - line_nm(letter, environment)) <= 1e-6 * w for w in values)
 
     for blue, red, middle in (("F", "C", "d"), ("F'", "C'", "e")):
         if listed(blue) and listed(red):
-            return middle, SPECTRAL_LINES[blue], SPECTRAL_LINES[red]
+            return middle, line_nm(blue, environment), line_nm(red, environment)
     return None, values[0], values[-1]

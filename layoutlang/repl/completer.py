@@ -24,10 +24,10 @@ __all__ = ["LayoutCompleter", "next_terminals", "candidates", "units_for"]
 
 _PARTIAL = re.compile(r"[A-Za-z_][A-Za-z0-9_-]*$")
 #: The words the UNIT terminal matches (grammar/layoutlang.lark), for completion after a number.
-_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "diopters")
+_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "diopters", "diopter")
 _LENGTH_UNITS = ("nm", "um", "mm", "cm", "m", "in")
 #: The word that says what kind of value follows, and the units that value may take.
-_UNITS_AFTER = {"angle": ("deg", "rad"), "power": ("diopters",)}
+_UNITS_AFTER = {"angle": ("deg", "rad"), "power": ("diopters", "diopter")}
 #: Statements whose values may be of any kind (the unit depends on a quantity or a constant).
 _ANY_KIND = frozenset({"expect", "let", "nominal", "report", "sample"})
 #: Words after which only a medium may stand.

@@ -15,7 +15,7 @@ from pathlib import Path
 from ..errors import LayoutError, LayoutFileError, LayoutSyntaxError, LayoutValueError
 from ..syntax import tree as t
 from ..syntax.parser import parse
-from ..syntax.rewrite import RewriteError, rewrite, tidy_touched
+from ..syntax.rewrite import RewriteError, rewrite_script, tidy_touched
 from ..syntax.unparse import unparse
 from .changes import describe_changes
 from .edits import Statements, apply_edit, medium_names, scope_names
@@ -181,25 +181,34 @@ class Workspace:
             return self.answer(statement)
         return self._commit(self.statements + (statement,), "")
 
-    def text_of(self, statements: Statements) -> str:
-        """The script text `save` writes for these statements: the file's own text, changed
-        only where the statements changed.
+    def _script_of(self, statements: Statements) -> t.Script:
+        """The file's own text changed only where the statements changed, parsed.
 
         Raises:
             RewriteError: the statements cannot be written into the text exactly.
         """
         file = str(self.path) if self.path else SESSION_FILE
-        text = rewrite(self.source, self.source_statements, statements, file)
-        return tidy_touched(self.source, text, file)
+        return rewrite_script(self.source, self.source_statements, statements, file)
+
+    def text_of(self, statements: Statements) -> str:
+        """The script text `save` writes for these statements (canonical spacing on the lines
+        that changed, where that re-spaces no other line).
+
+        Raises:
+            RewriteError: the statements cannot be written into the text exactly.
+        """
+        file = str(self.path) if self.path else SESSION_FILE
+        return tidy_touched(self.source, self._script_of(statements).text, file)
 
     def _evaluate(self, statements: Statements) -> Snapshot:
-        """Evaluate as the saved file would read: its name and its line numbers."""
+        """Evaluate as the saved file would read: its name and its line numbers (tidying on
+        save moves columns, never lines)."""
         file = str(self.path) if self.path else SESSION_FILE
         try:
-            text = self.text_of(statements)
+            script = self._script_of(statements)
         except RewriteError:
-            text = None  # evaluated in canonical form; `save` says it cannot write this
-        return evaluate(statements, self.base, file, text)
+            script = None  # evaluated in canonical form; `save` says it cannot write this
+        return evaluate(statements, self.base, file, script)
 
     def _commit(self, statements: Statements, said: str) -> str:
         try:

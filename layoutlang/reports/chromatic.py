@@ -13,8 +13,9 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..measure import to_nanometres
 from ..testing import format_number
+from .blocks import Block, Heading, Line, Table, to_text
 
-__all__ = ["has_colour", "setting_lines", "colour_lines", "colour_notes", "colour_json"]
+__all__ = ["has_colour", "setting_lines", "colour_lines", "colour_blocks", "colour_json"]
 
 
 def has_colour(program: Program) -> bool:
@@ -51,22 +52,16 @@ def setting_lines(program: Program) -> list[str]:
     return lines
 
 
-def _table(rows: list[list[str]]) -> list[str]:
-    from .text import aligned
-
-    return aligned(rows)
-
-
-def colour_lines(program: Program, results: FirstOrder) -> list[str]:
+def colour_blocks(program: Program, results: FirstOrder) -> list[Block]:
     """The colour section: per-wavelength values, summary, requests, achromats, warnings."""
     from ..engines.chromatic import colour_table, evaluate
 
     system = program.system
     units = system.units
-    lines: list[str] = []
+    out: list[Block] = []
     table = colour_table(system, results)
     if table is not None:
-        lines += ["", "colour (paraxial, per wavelength)"]
+        out.append(Heading("colour (paraxial, per wavelength)"))
         rows = [["wavelength", "focal length", "image distance", "chief ray on image plane"]]
         for i, w in enumerate(table.wavelengths):
             cells = [_nm(system, w) + (" (primary)" if system.wavelengths[i].primary else "")]
@@ -74,15 +69,15 @@ def colour_lines(program: Program, results: FirstOrder) -> list[str]:
                 cells.append(str(values) if isinstance(values, Unavailable)
                              else _value(float(values[i]), units))
             rows.append(cells)
-        lines += _table(rows)
-        lines += _table([[request.describe(), _value(value, units)]
-                         for request, value in table.summary])
+        out.append(Table(rows))
+        out.append(Table([[request.describe(), _value(value, units)]
+                          for request, value in table.summary], header=False))
         if not any(m.model is not None for m in system.media):
-            lines.append("  note: every medium here has a constant index, so no colour shows; "
-                         "give media a dispersion model (see `use materials`)")
+            out.append(Line("note: every medium here has a constant index, so no colour shows; "
+                            "give media a dispersion model (see `use materials`)"))
     colour = program.colour
     if colour is not None and colour.reports:
-        lines += ["", "requested (colour)"]
+        out.append(Heading("requested (colour)"))
         rows = []
         for request in colour.reports:
             from ..checks import display_unit, to_display
@@ -91,31 +86,19 @@ def colour_lines(program: Program, results: FirstOrder) -> list[str]:
             kind = QUANTITIES[request.quantity].kind
             value = to_display(evaluate(request, system, results), kind, units)
             rows.append([request.describe(), _value(value, display_unit(kind, units))])
-        lines += _table(rows)
+        out.append(Table(rows, header=False))
     for achromat in () if colour is None else colour.achromats:
-        lines += ["", f"achromat from {achromat.first} and {achromat.second}"]
-        lines += ["  " + line for line in _achromat_lines(achromat, results, units)]
+        out.append(Heading(f"achromat from {achromat.first} and {achromat.second}"))
+        out += [Line(line) for line in _achromat_lines(achromat, results, units)]
     if program.warnings:
-        lines += ["", "warnings"] + ["  " + w for w in program.warnings]
-    return lines
+        out.append(Heading("warnings"))
+        out += [Line(w) for w in program.warnings]
+    return out
 
 
-def colour_notes(program: Program, results: FirstOrder) -> list[str]:
-    """Short lines for documents: focal length per wavelength, colour summary, warnings."""
-    from ..engines.chromatic import colour_table
-
-    system = program.system
-    units = system.units
-    notes = []
-    table = colour_table(system, results)
-    if table is not None:
-        if not isinstance(table.focal_length, Unavailable):
-            notes.append("focal length per wavelength: " + ", ".join(
-                f"{_nm(system, w)} {_value(float(f), units)}"
-                for w, f in zip(table.wavelengths, table.focal_length)))
-        notes += [f"{request.describe()}: {_value(value, units)}"
-                  for request, value in table.summary]
-    return notes + list(program.warnings)
+def colour_lines(program: Program, results: FirstOrder) -> list[str]:
+    """`colour_blocks` as lines of the text report."""
+    return to_text(colour_blocks(program, results))
 
 
 def _achromat_lines(achromat, results: FirstOrder, units: str) -> list[str]:

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import base64
 import html
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -18,7 +19,9 @@ from ..engines.firstorder import FirstOrder
 from ..interpret.interpreter import Program
 from ..system import System
 from ..testing import format_number
-from .text import LAYOUT_HEADINGS, SIGN_CONVENTION, first_order_rows, layout_rows
+from .blocks import Block, Heading, Line, Table
+from .text import (LAYOUT_HEADINGS, SIGN_CONVENTION, first_order_rows, layout_rows,
+                   requested_blocks)
 
 __all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
            "latex_document"]
@@ -37,10 +40,25 @@ class Sections:
     expectations: list[list[str]]  # status, line, statement, message
     equations: list[tuple[str, str, str]] = field(default_factory=list)  # name, text, latex
     cautions: list[str] = field(default_factory=list)
+    #: the sections the script asked for, as the text report prints them (blocks.py)
+    requested: list[Block] = field(default_factory=list)
 
     @property
     def all_hold(self) -> bool:
         return all(row[0] == "holds" for row in self.expectations)
+
+    @property
+    def summary(self) -> str:
+        """Pass or fail in one sentence, for the top of the document."""
+        total = len(self.expectations)
+        if not total:
+            return "The script states no expectations."
+        failed = [row[1] for row in self.expectations if row[0] != "holds"]
+        if not failed:
+            return f"All {total} expectations hold." if total > 1 else "The expectation holds."
+        where = ", ".join(failed)
+        return (f"{len(failed)} of {total} expectations FAIL (line{'s' if len(failed) > 1 else ''}"
+                f" {where}).")
 
 
 @dataclass(frozen=True)
@@ -84,15 +102,17 @@ def gather(program: Program, results: FirstOrder, checked: list[CheckResult]) ->
     hazards = tuple(getattr(program, "hazards", ()) or ())
     cautions = [CAUTIONS[h] for h in hazards if h in CAUTIONS]
     setting, notes = setting_lines(system), list(results.notes)
+    colour = False
     if program.colour is not None or program.warnings:  # materials and colour (chromatic.py)
-        from .chromatic import colour_notes, has_colour, setting_lines as material_lines
+        from .chromatic import has_colour, setting_lines as material_lines
 
-        if has_colour(program):
+        colour = has_colour(program)
+        if colour:
             setting += [line.strip() for line in material_lines(program)]
-            notes += colour_notes(program, results)
     return Sections(system.title or Path(program.file).name, program.file, units,
                     layout_rows(system), setting, first, notes,
-                    expectations, _equations(program), cautions + ([GENERAL] if cautions else []))
+                    expectations, _equations(program), cautions + ([GENERAL] if cautions else []),
+                    requested_blocks(program, results, colour))
 
 
 # --- Markdown --------------------------------------------------------------------------------
@@ -107,9 +127,23 @@ def _md_table(head: list[str], rows: list[list[str]]) -> list[str]:
     return lines
 
 
+def _md_blocks(blocks: list[Block]) -> list[str]:
+    out: list[str] = []
+    for block in blocks:
+        if isinstance(block, Heading):
+            out += ["", f"### {_md_cell(block.text)}", ""]
+        elif isinstance(block, Line):
+            out += [_md_cell(block.text), ""]
+        elif block.rows:
+            head = block.head or ["" for _ in block.rows[0]]
+            out += _md_table(head, block.body) + [""]
+    return out
+
+
 def markdown(s: Sections, drawing_link: str | None) -> str:
     """The report as Markdown; `drawing_link` is an image path or data URI (None: omitted)."""
-    out = [f"# {s.title}", "", f"File `{s.file}`, lengths in {s.units}. {SIGN_CONVENTION}.", ""]
+    out = [f"# {s.title}", "", f"**{s.summary}**", "",
+           f"File `{s.file}`, lengths in {s.units}. {SIGN_CONVENTION}.", ""]
     for caution in s.cautions:
         out += [f"> **{caution}**", ""]
     if drawing_link:
@@ -118,6 +152,11 @@ def markdown(s: Sections, drawing_link: str | None) -> str:
     out += ["## Setting", ""] + [f"- {line}" for line in s.setting] + [""]
     out += ["## First-order properties", ""] + _md_table(["quantity", "value"], s.first_order)
     out += [""] + [f"Note: {note}" for note in s.notes] + ([""] if s.notes else [])
+    if s.requested:
+        out += ["## Requested"] + _md_blocks(s.requested)
+        while out[-1] == "":
+            out.pop()
+        out += [""]
     out += ["## Expectations", ""]
     if s.expectations:
         out += _md_table(["status", "line", "statement", "result"], s.expectations)
@@ -136,12 +175,15 @@ _CSS = ("body{font-family:system-ui,sans-serif;max-width:60em;margin:2em auto;co
         "table{border-collapse:collapse;margin:.5em 0}"
         "td,th{border-bottom:1px solid #d5dbe3;padding:.2em .8em;text-align:left}"
         ".holds{color:#1d6b3a}.FAILS{color:#a31f1f;font-weight:bold}"
-        ".caution{border-left:4px solid #a31f1f;padding:.3em .8em}")
+        ".caution{border-left:4px solid #a31f1f;padding:.3em .8em}"
+        ".summary{font-size:1.15em;padding:.3em .8em;border-left:4px solid currentColor}"
+        "td{vertical-align:top}")
 
 
 def _html_table(head: list[str], rows: list[list[str]], status_column: int | None = None) -> str:
     esc = html.escape
-    parts = ["<table>", "<tr>" + "".join(f"<th>{esc(h)}</th>" for h in head) + "</tr>"]
+    parts = ["<table>"] + (["<tr>" + "".join(f"<th>{esc(h)}</th>" for h in head) + "</tr>"]
+                           if head else [])
     for row in rows:
         cells = []
         for i, cell in enumerate(row):
@@ -152,10 +194,25 @@ def _html_table(head: list[str], rows: list[list[str]], status_column: int | Non
     return "\n".join(parts)
 
 
+def _html_blocks(blocks: list[Block]) -> list[str]:
+    esc = html.escape
+    out: list[str] = []
+    for block in blocks:
+        if isinstance(block, Heading):
+            out.append(f"<h3>{esc(block.text)}</h3>")
+        elif isinstance(block, Line):
+            out.append(f"<p>{esc(block.text)}</p>")
+        elif block.rows:
+            out.append(_html_table(block.head or [], block.body))
+    return out
+
+
 def html_fragment(s: Sections, svg: str | None) -> str:
     """The report's body as HTML (also used for notebook display)."""
     esc = html.escape
+    state = "holds" if s.all_hold else "FAILS"
     out = [f"<h1>{esc(s.title)}</h1>",
+           f'<p class="summary {state}">{esc(s.summary)}</p>',
            f"<p>File <code>{esc(s.file)}</code>, lengths in {esc(s.units)}. "
            f"{esc(SIGN_CONVENTION)}.</p>"]
     out += [f'<p class="caution">{esc(c)}</p>' for c in s.cautions]
@@ -166,6 +223,8 @@ def html_fragment(s: Sections, svg: str | None) -> str:
             + "</ul>"]
     out += ["<h2>First-order properties</h2>", _html_table(["quantity", "value"], s.first_order)]
     out += [f"<p>Note: {esc(n)}</p>" for n in s.notes]
+    if s.requested:
+        out += ["<h2>Requested</h2>"] + _html_blocks(s.requested)
     out += ["<h2>Expectations</h2>", _html_table(["status", "line", "statement", "result"],
                                                   s.expectations, 0) if s.expectations
             else "<p>The script states no expectations.</p>"]
@@ -194,25 +253,54 @@ _TEX_SPECIAL = {"\\": r"\textbackslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "
                 "′": "'", "–": "--", "—": "---", "“": "``", "”": "''", "’": "'"}
 
 
+#: A minus sign that starts a number (not the one in "real - paraxial" or in 1e-3).
+_NEGATIVE = re.compile(r"(?<![\w.])-(?=\.?\d)(\S*)")
+
+
 def tex_escape(text: str) -> str:
-    """Text safe inside a LaTeX paragraph or table cell."""
-    return "".join(_TEX_SPECIAL.get(ch, ch if ord(ch) < 256 else f"[U+{ord(ch):04X}]")
-                   for ch in text)  # plain pdflatex knows Latin-1; say which character it was
+    """Text safe inside a LaTeX paragraph or table cell; a negative number is one unbreakable
+    box with a true minus sign, so a line never breaks after its sign."""
+    escaped = "".join(_TEX_SPECIAL.get(ch, ch if ord(ch) < 256 else f"[U+{ord(ch):04X}]")
+                      for ch in text)  # plain pdflatex knows Latin-1; say which character it was
+    return _NEGATIVE.sub(lambda m: r"\mbox{$-$" + m.group(1) + "}", escaped)
 
 
-def _tex_table(head: list[str], rows: list[list[str]], spec: str) -> list[str]:
-    lines = [r"\begin{longtable}{" + spec + "}", r"\hline",
-             " & ".join(r"\textbf{" + tex_escape(h) + "}" for h in head) + r" \\", r"\hline"]
+#: Cells that may wrap: ragged right, never hyphenated (the preamble forbids hyphenation).
+def _wrapping(width: str) -> str:
+    return r">{\raggedright\arraybackslash}p{" + width + "}"
+
+
+def _tex_table(head: list[str] | None, rows: list[list[str]], spec: str) -> list[str]:
+    lines = [r"\begin{longtable}{" + spec + "}", r"\hline"]
+    if head:
+        lines += [" & ".join(r"\textbf{" + tex_escape(h) + "}" for h in head) + r" \\",
+                  r"\hline", r"\endhead"]
     lines += [" & ".join(tex_escape(c) for c in row) + r" \\" for row in rows]
     lines += [r"\hline", r"\end{longtable}"]
     return lines
 
 
+def _tex_blocks(blocks: list[Block]) -> list[str]:
+    out: list[str] = []
+    for block in blocks:
+        if isinstance(block, Heading):
+            out.append(r"\subsubsection*{" + tex_escape(block.text) + "}")
+        elif isinstance(block, Line):
+            out.append(r"\noindent " + tex_escape(block.text) + r"\par")
+        elif block.rows:
+            columns = len(block.rows[0])
+            table = _tex_table(block.head, block.body, "l" * columns)
+            out += ([r"{\footnotesize"] + table + ["}"]) if columns > 4 else table
+    return out
+
+
 def latex_document(s: Sections, drawing_file: str | None) -> str:
     """A whole LaTeX document (article class; needs graphicx, longtable and amsmath)."""
     out = [r"\documentclass{article}", r"\usepackage[T1]{fontenc}", r"\usepackage[utf8]{inputenc}",
-           r"\usepackage{graphicx,longtable,amsmath}", r"\usepackage[margin=2cm]{geometry}",
+           r"\usepackage{graphicx,longtable,array,amsmath}", r"\usepackage[margin=2cm]{geometry}",
+           r"\hyphenpenalty=10000 \exhyphenpenalty=10000  % words and signs are never split",
            r"\begin{document}", r"\section*{" + tex_escape(s.title) + "}",
+           r"\noindent\textbf{" + tex_escape(s.summary) + r"}\par\medskip", "",
            tex_escape(f"File {s.file}, lengths in {s.units}. {SIGN_CONVENTION}."), ""]
     for caution in s.cautions:
         out += [r"\noindent\fbox{\parbox{\linewidth}{" + tex_escape(caution) + "}}", ""]
@@ -227,10 +315,12 @@ def latex_document(s: Sections, drawing_file: str | None) -> str:
     out += [r"\subsection*{First-order properties}"]
     out += _tex_table(["quantity", "value"], s.first_order, "ll")
     out += [tex_escape(f"Note: {n}") + r"\par" for n in s.notes]
+    if s.requested:
+        out += [r"\subsection*{Requested}"] + _tex_blocks(s.requested)
     out += [r"\subsection*{Expectations}"]
     if s.expectations:
         out += _tex_table(["status", "line", "statement", "result"], s.expectations,
-                          r"llp{0.3\linewidth}p{0.4\linewidth}")
+                          "ll" + _wrapping(r"0.3\linewidth") + _wrapping(r"0.4\linewidth"))
     else:
         out += ["The script states no expectations."]
     if s.equations:

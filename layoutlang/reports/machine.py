@@ -10,7 +10,7 @@ from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, REPORT_ORDER
 from .text import SIGN_CONVENTION
 
-__all__ = ["round12", "program_json", "check_json", "dumps"]
+__all__ = ["round12", "program_json", "setting_json", "check_json", "dumps"]
 
 
 def round12(value: float) -> float:
@@ -43,6 +43,42 @@ def _cautions(program: Program) -> list[str]:
     return [CAUTIONS[kind] for kind in program.hazards] + [GENERAL]
 
 
+def setting_json(system) -> dict:
+    """The object, stop, image plane and wavelengths as data, with the report's words beside
+    them (`words`), so a reader of the JSON knows the conditions the numbers hold for."""
+    import math
+
+    from ..measure import to_nanometres
+    from .text import image_plane_words, setting_lines
+
+    obj = system.object
+    if obj.at_infinity:
+        where = {"at_infinity": True, "field_angle_deg": round12(math.degrees(obj.field_angle))}
+    else:
+        where = {"at_infinity": False, "distance_before_first_vertex": round12(obj.distance),
+                 "height": round12(obj.height)}
+    stop = system.stop
+    stop_data = None
+    if stop is not None:
+        stop_data = {
+            "after_boundary": None if stop.after < 0 else system.boundaries[stop.after].name,
+            "offset": round12(stop.offset),  # from that vertex (from the first when None)
+            "size_kind": stop.size_kind, "size": round12(stop.size)}
+    image = system.image
+    words = [line.strip() for line in setting_lines(system)]
+    return {
+        "object": where,
+        "stop": stop_data,
+        "image_plane": {"at_focus": image.distance is None,
+                        "distance_after_last_vertex": None if image.distance is None
+                        else round12(image.distance),
+                        "words": image_plane_words(system)},
+        "wavelengths_nm": [{"value": round12(to_nanometres(w.value, system.units)),
+                            "primary": w.primary} for w in system.wavelengths],
+        "words": words,
+    }
+
+
 def program_json(program: Program, results: FirstOrder, checked: list[CheckResult]) -> dict:
     system = program.system
     units = system.units
@@ -60,6 +96,7 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
             "gap_after": round12(system.gaps[i]) if i < len(system.gaps) else None,
             "clear_diameter": None if b.clear_diameter is None else round12(b.clear_diameter),
         } for i, b in enumerate(system.boundaries)],
+        "setting": setting_json(system),
         "first_order": {name: _quantity(name, results[name], units) for name in REPORT_ORDER},
         "notes": list(results.notes),
         "expectations": _checks(checked),
@@ -70,11 +107,16 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
 
 def _rays(program: Program, results: FirstOrder) -> dict:
     """The exact-ray and Seidel sections, when the script asks for them (reports/rays.py)."""
-    if not getattr(program, "ray_reports", ()):
-        return {}
-    from .rays import rays_json
+    found = {}
+    if getattr(program, "ray_requests", ()):
+        from .rays import ray_requests_json
 
-    return {"rays": rays_json(program, results)}
+        found["requested_rays"] = ray_requests_json(program, results)
+    if getattr(program, "ray_reports", ()):
+        from .rays import rays_json
+
+        found["rays"] = rays_json(program, results)
+    return found
 
 
 def _colour(program: Program, results: FirstOrder) -> dict:

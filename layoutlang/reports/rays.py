@@ -12,13 +12,15 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, FIELD_DEFAULTS
 from ..testing import format_number
+from .blocks import Block, Heading, Line, Table, to_text
 from .text import aligned
 
-__all__ = ["ray_sections", "exact_ray_lines", "seidel_lines", "requested_ray_lines", "rays_json"]
+#: Indent of the rows under a sub-heading of the exact-ray section.
+_ROWS = "    "
 
-
-def _table(rows: list[list[str]], indent: str = "    ") -> list[str]:
-    return aligned(rows, indent)
+__all__ = ["ray_sections", "ray_section_blocks", "exact_ray_lines", "exact_ray_blocks",
+           "seidel_lines", "seidel_blocks", "requested_ray_lines", "requested_ray_rows",
+           "ray_request_lines", "ray_request_blocks", "rays_json", "ray_requests_json"]
 
 
 def _len(value, units: str) -> str:
@@ -52,23 +54,23 @@ def _has_ideal(system) -> bool:
     return any(b.kind == "ideal" for b in system.boundaries)
 
 
-def exact_ray_lines(program: Program, results: FirstOrder) -> list[str]:
+def exact_ray_blocks(program: Program, results: FirstOrder) -> list[Block]:
     """The paraxial validity report and the ray aberrations."""
     from ..engines.rayquantities import ray_quantities
 
     system = program.system
     units = system.units
     a = ray_quantities(system, program.rays, results).analysis
-    lines = ["", "exact rays against the paraxial numbers"]
+    out: list[Block] = [Heading("exact rays against the paraxial numbers")]
     if a.unavailable is not None:
-        return lines + [f"  not traced: {a.unavailable}"]
+        return out + [Line(f"not traced: {a.unavailable}")]
     na = a.numerical_aperture
-    lines.append(f"  wavelength {_nm(system, a.wavelength)} (primary); paraxial image-side "
-                 f"numerical aperture {format_number(na, 4)}; depth of focus λ/NA² "
-                 f"{_len(a.depth_of_focus, units)}")
-    lines.append("  rays are aimed at the real stop" + (
-        "; each ideal 'lens' acts as a perfect paraxial lens" if _has_ideal(system) else ""))
-    lines.append("  axial rays: where each crosses the axis after the last boundary")
+    out.append(Line(f"wavelength {_nm(system, a.wavelength)} (primary); paraxial image-side "
+                    f"numerical aperture {format_number(na, 4)}; depth of focus λ/NA² "
+                    f"{_len(a.depth_of_focus, units)}"))
+    out.append(Line("rays are aimed at the real stop" + (
+        "; each ideal 'lens' acts as a perfect paraxial lens" if _has_ideal(system) else "")))
+    out.append(Line("axial rays: where each crosses the axis after the last boundary"))
     rows = [["pupil", "real focus", "paraxial focus", "real - paraxial",
              "height on the paraxial focal plane"]]
     lost = []
@@ -78,10 +80,10 @@ def exact_ray_lines(program: Program, results: FirstOrder) -> list[str]:
                      _len(r.transverse, units)])
         if r.lost:
             lost.append(f"pupil {format_number(r.pupil, 4)}: {r.lost}")
-    lines += _table(rows) if a.marginal else ["    (no pupil sampled)"]
-    lines += [f"    lost: {words}" for words in lost]
-    lines.append(f"  verdict: {a.focus_verdict}")
-    lines.append("  chief rays: height on the image plane")
+    out.append(Table(rows, indent=_ROWS) if a.marginal else Line("(no pupil sampled)", _ROWS))
+    out += [Line(f"lost: {words}", _ROWS) for words in lost]
+    out.append(Line(f"verdict: {a.focus_verdict}"))
+    out.append(Line("chief rays: height on the image plane"))
     rows = [["field", "real height", "paraxial height", "real - paraxial", "distortion"]]
     lost = []
     for r in a.chief:
@@ -90,11 +92,11 @@ def exact_ray_lines(program: Program, results: FirstOrder) -> list[str]:
                      _pct(r.distortion)])
         if r.lost:
             lost.append(f"field {format_number(r.field, 4)}: {r.lost}")
-    lines += _table(rows)
-    lines += [f"    lost: {words}" for words in lost]
-    lines.append(f"  verdict: {a.height_verdict}")
-    lines.append(f"  spots on the image plane: pupil grid {program.rays.grid} across, radii "
-                 f"about the centroid")
+    out.append(Table(rows, indent=_ROWS))
+    out += [Line(f"lost: {words}", _ROWS) for words in lost]
+    out.append(Line(f"verdict: {a.height_verdict}"))
+    out.append(Line(f"spots on the image plane: pupil grid {program.rays.grid} across, radii "
+                    f"about the centroid"))
     rows = [["field", "wavelength", "rays reaching", "rms radius", "largest radius"]]
     lost = []
     for r in a.spots:
@@ -104,24 +106,29 @@ def exact_ray_lines(program: Program, results: FirstOrder) -> list[str]:
         if r.lost:
             lost.append(f"field {format_number(r.field, 4)}, {_nm(system, r.wavelength)}: "
                         f"{r.lost}")
-    lines += _table(rows)
-    lines += [f"    lost: {words}" for words in lost]
-    lines.append(f"  best focus (least RMS spot, axial bundle): "
-                 f"{_len(a.best_focus_shift, units)} from the paraxial focus along the path")
-    return lines
+    out.append(Table(rows, indent=_ROWS))
+    out += [Line(f"lost: {words}", _ROWS) for words in lost]
+    out.append(Line(f"best focus (least RMS spot, axial bundle): "
+                    f"{_len(a.best_focus_shift, units)} from the paraxial focus along the path"))
+    return out
 
 
-def seidel_lines(program: Program, results: FirstOrder) -> list[str]:
+def exact_ray_lines(program: Program, results: FirstOrder) -> list[str]:
+    """`exact_ray_blocks` as lines of the text report."""
+    return to_text(exact_ray_blocks(program, results))
+
+
+def seidel_blocks(program: Program, results: FirstOrder) -> list[Block]:
     """Per-surface third-order contributions, totals, Petzval sum and radius."""
     from ..engines.rayquantities import ray_quantities
 
     system = program.system
     units = system.units
     sums = ray_quantities(system, program.rays, results).seidel
-    lines = ["", f"third-order (Seidel) sums at full aperture and field, in {units} "
-                 "(surface formulas of Welford 1986)"]
+    out: list[Block] = [Heading(f"third-order (Seidel) sums at full aperture and field, in "
+                                f"{units} (surface formulas of Welford 1986)")]
     if isinstance(sums, Unavailable):
-        return lines + [f"  not computed: {sums}"]
+        return out + [Line(f"not computed: {sums}")]
     names = ["spherical", "coma", "astigmatism", "field_curvature", "distortion",
              "axial_colour", "lateral_colour"]
     rows = [["boundary", "S I spherical", "S II coma", "S III astigmatism",
@@ -130,29 +137,34 @@ def seidel_lines(program: Program, results: FirstOrder) -> list[str]:
     for s in sums.surfaces:
         rows.append([s.name] + [format_number(getattr(s, n), 4) for n in names])
     rows.append(["total"] + [format_number(sums.total(n), 4) for n in names])
-    lines += _table(rows, "  ")
+    out.append(Table(rows))
     radius = sums.petzval_radius
     where = "" if isinstance(radius, Unavailable) else (
         "  (centre downstream)" if radius > 0 else "  (centre upstream)")
-    lines.append(f"  Petzval sum {format_number(sums.petzval_sum, 5)} per {units}; Petzval "
-                 f"radius {_len(radius, units)}{where}")
+    out.append(Line(f"Petzval sum {format_number(sums.petzval_sum, 5)} per {units}; Petzval "
+                    f"radius {_len(radius, units)}{where}"))
     if len(system.wavelengths) < 2:
-        lines.append("  chromatic sums need two or more wavelengths; they are zero here")
+        out.append(Line("chromatic sums need two or more wavelengths; they are zero here"))
     else:
         from ..engines.seidel import colour_ends
 
         blue, red = colour_ends(system)
-        lines.append(f"  C I and C II take δn between {_nm(system, blue)} and "
-                     f"{_nm(system, red)} (F and C when listed, else the shortest and longest); "
-                     "zero for media with a constant index")
+        out.append(Line(f"C I and C II take δn between {_nm(system, blue)} and "
+                        f"{_nm(system, red)} (F and C when listed, else the shortest and "
+                        "longest); zero for media with a constant index"))
     if _has_ideal(system):
-        lines.append("  an ideal 'lens' images perfectly and contributes nothing")
-    return lines
+        out.append(Line("an ideal 'lens' images perfectly and contributes nothing"))
+    return out
 
 
-def requested_ray_lines(program: Program, results: FirstOrder, names: tuple[str, ...]
-                        ) -> list[str]:
-    """Rows for ray quantities named in a `report` statement."""
+def seidel_lines(program: Program, results: FirstOrder) -> list[str]:
+    """`seidel_blocks` as lines of the text report."""
+    return to_text(seidel_blocks(program, results))
+
+
+def requested_ray_rows(program: Program, results: FirstOrder, names: tuple[str, ...]
+                       ) -> list[list[str]]:
+    """[label, value] for the ray quantities named in a `report` statement."""
     from ..engines.rayquantities import ray_quantities
 
     system = program.system
@@ -167,17 +179,51 @@ def requested_ray_lines(program: Program, results: FirstOrder, names: tuple[str,
         label = name if field is None else f"{name} at field {format_number(field, 4)}"
         text = _pct(value) if QUANTITIES[name].kind == "percent" else _len(value, units)
         rows.append([label, text])
-    return _table(rows, "  ") if rows else []
+    return rows
+
+
+def requested_ray_lines(program: Program, results: FirstOrder, names: tuple[str, ...]
+                        ) -> list[str]:
+    """Rows for ray quantities named in a `report` statement, aligned."""
+    rows = requested_ray_rows(program, results, names)
+    return aligned(rows, "  ") if rows else []
+
+
+def ray_request_blocks(program: Program, results: FirstOrder) -> list[Block]:
+    """The `report Q at field F [at wavelength W]` lines: one row each, labelled as written."""
+    if not program.ray_requests:
+        return []
+    from ..engines.rayquantities import ray_quantities
+
+    units = program.system.units
+    rays = ray_quantities(program.system, program.rays, results)
+    rows = []
+    for request in program.ray_requests:
+        value = rays.value(request.name, request.field, "", request.wavelength)
+        text = _pct(value) if QUANTITIES[request.name].kind == "percent" else _len(value, units)
+        rows.append([request.label, text])
+    return [Heading("requested: " + ", ".join(r.label for r in program.ray_requests)),
+            Table(rows, header=False)]
+
+
+def ray_request_lines(program: Program, results: FirstOrder) -> list[str]:
+    """`ray_request_blocks` as lines of the text report."""
+    return to_text(ray_request_blocks(program, results))
+
+
+def ray_section_blocks(program: Program, results: FirstOrder) -> list[Block]:
+    """Everything the script asked of the ray engine (nothing when it asked nothing)."""
+    out: list[Block] = []
+    if "exact rays" in program.ray_reports:
+        out += exact_ray_blocks(program, results)
+    if "seidel sums" in program.ray_reports:
+        out += seidel_blocks(program, results)
+    return out
 
 
 def ray_sections(program: Program, results: FirstOrder) -> list[str]:
-    """Everything the script asked of the ray engine (nothing when it asked nothing)."""
-    lines: list[str] = []
-    if "exact rays" in program.ray_reports:
-        lines += exact_ray_lines(program, results)
-    if "seidel sums" in program.ray_reports:
-        lines += seidel_lines(program, results)
-    return lines
+    """`ray_section_blocks` as lines of the text report."""
+    return to_text(ray_section_blocks(program, results))
 
 
 def _json_value(value):
@@ -234,4 +280,22 @@ def rays_json(program: Program, results: FirstOrder) -> dict:
                 "petzval_sum": _json_value(sums.petzval_sum),
                 "petzval_radius": _json_value(sums.petzval_radius),
             }
+    return found
+
+
+def ray_requests_json(program: Program, results: FirstOrder) -> list[dict]:
+    """The `report Q at field F` requests as plain data, labelled as written."""
+    from ..engines.rayquantities import ray_quantities
+
+    rays = ray_quantities(program.system, program.rays, results)
+    found = []
+    for request in program.ray_requests:
+        value = rays.value(request.name, request.field, "", request.wavelength)
+        percent = QUANTITIES[request.name].kind == "percent"
+        if percent and not isinstance(value, Unavailable):
+            value = value * 100
+        field = None if request.field is None else _json_value(request.field)
+        found.append({"quantity": request.name, "label": request.label, "field": field,
+                      "value": _json_value(value),
+                      "unit": "%" if percent else program.system.units})
     return found

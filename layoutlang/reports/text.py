@@ -14,13 +14,14 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
-from ..testing import format_number
+from ..testing import format_number, with_unit
 
 __all__ = [
     "aligned",
     "image_plane_words",
     "setting_lines",
     "SIGN_CONVENTION",
+    "NOTHING_CHECKED",
     "LAYOUT_HEADINGS",
     "layout_rows",
     "layout_table",
@@ -28,8 +29,12 @@ __all__ = [
     "first_order_table",
     "expectation_lines",
     "full_report",
+    "requested_blocks",
     "describe_value",
 ]
+
+#: What a script without `expect` lines is told (report, check, session): it checked nothing.
+NOTHING_CHECKED = "none: this script states no expectations, so nothing was checked"
 
 SIGN_CONVENTION = (
     "signs: light starts travelling in +z; distances are measured along the path and are "
@@ -126,14 +131,42 @@ def image_plane_words(system: System) -> str:
     return f"{_length(abs(distance), system.units)} {side} the last boundary"
 
 
+#: Positions along the path and the vertex they are measured from (positive downstream).
+POSITION_FROM = {
+    "front principal point": "the first vertex", "front nodal point": "the first vertex",
+    "entrance pupil position": "the first vertex", "image position": "the first vertex",
+    "back principal point": "the last vertex", "back nodal point": "the last vertex",
+    "exit pupil position": "the last vertex",
+}
+#: Distances to a focal point: (the point, the vertex, the sign that means "after").
+_FOCAL_DISTANCES = {"back focal distance": ("back focal point", "the last vertex", 1),
+                    "front focal distance": ("front focal point", "the first vertex", -1)}
+
+
+def _where(value: float, vertex: str, units: str, point: str = "") -> str:
+    """'11.1 mm after the first vertex' (or before, or at) for a signed position."""
+    lead = f"{point} " if point else ""
+    if value == 0:
+        return f"{lead}at {vertex}"
+    side = "after" if value > 0 else "before"
+    return f"{lead}{_length(abs(value), units)} {side} {vertex}"
+
+
 def describe_value(name: str, value, units: str) -> str:
-    """A quantity's value with its unit, or the reason it has none."""
+    """A quantity's value with its unit, or the reason it has none; a position also says
+    from where it is measured (`11.147 mm after the first vertex`)."""
     if isinstance(value, Unavailable):
         return str(value)
     kind = QUANTITIES[name].kind
-    shown = to_display(value, kind, units)
-    unit = display_unit(kind, units)
-    text = f"{format_number(shown)} {unit}".rstrip()
+    text = with_unit(to_display(value, kind, units), display_unit(kind, units))
+    if name in POSITION_FROM:
+        where = _where(value, POSITION_FROM[name], units)
+        return where if value > 0 else f"{text}  ({where})"
+    if name in _FOCAL_DISTANCES:
+        point, vertex, sense = _FOCAL_DISTANCES[name]
+        if value > 0:  # the usual side: the number says how far
+            return f"{text}  ({point} {'after' if sense > 0 else 'before'} {vertex})"
+        return f"{text}  ({_where(sense * value, vertex, units, point)})"
     if name == "image distance":
         text += "  (real image, downstream)" if value >= 0 else \
             f"  (virtual image, {_length(-value, units)} upstream of the last boundary)"
@@ -160,7 +193,53 @@ def expectation_lines(checked: list[CheckResult]) -> list[str]:
         e = result.expectation
         rows.append(["holds" if result.passed else "FAILS", f"line {e.span.line}",
                      result.outcome.message])
-    return aligned(rows) if rows else ["  (none)"]
+    return aligned(rows) if rows else ["  " + NOTHING_CHECKED]
+
+
+def requested_blocks(program: Program, results: FirstOrder, colour: bool | None = None) -> list:
+    """The sections a script asks for beyond the layout and its first-order properties, in
+    report order: `report` lines, ray requests, exact rays and Seidel sums, colour. The text
+    report and the documents both print exactly these.
+
+    Args:
+        program, results: the evaluated script.
+        colour: whether the colour sections apply (default: decided here).
+    """
+    from .blocks import Heading, Table
+
+    system = program.system
+    if colour is None:
+        colour = program.colour is not None or program.warnings
+        if colour:
+            from .chromatic import has_colour
+
+            colour = has_colour(program)
+    out: list = []
+    for names in program.reports:
+        if names:
+            out.append(Heading("requested: " + ", ".join(names)))
+            plain = [name for name in names if name not in RAY_QUANTITIES]
+            if plain:
+                out.append(Table(first_order_rows(results, system.units, plain), header=False))
+            if len(plain) < len(names):  # exact-ray and Seidel quantities (reports/rays.py)
+                from .rays import requested_ray_rows
+
+                rows = requested_ray_rows(program, results, names)
+                if rows:
+                    out.append(Table(rows, header=False))
+    if program.ray_requests:  # `report Q at field F` (reports/rays.py)
+        from .rays import ray_request_blocks
+
+        out += ray_request_blocks(program, results)
+    if program.ray_reports:
+        from .rays import ray_section_blocks
+
+        out += ray_section_blocks(program, results)
+    if colour:  # per-wavelength values, colour requests, achromats, warnings
+        from .chromatic import colour_blocks
+
+        out += colour_blocks(program, results)
+    return out
 
 
 def full_report(program: Program, results: FirstOrder, checked: list[CheckResult]) -> str:
@@ -184,23 +263,8 @@ def full_report(program: Program, results: FirstOrder, checked: list[CheckResult
     lines += ["", "first-order properties"] + first_order_table(results, system.units)
     for note in results.notes:
         lines.append(f"  note: {note}")
-    for names in program.reports:
-        if names:
-            lines += ["", "requested: " + ", ".join(names)]
-            plain = [name for name in names if name not in RAY_QUANTITIES]
-            if plain:
-                lines += first_order_table(results, system.units, plain)
-            if len(plain) < len(names):  # exact-ray and Seidel quantities (reports/rays.py)
-                from .rays import requested_ray_lines
+    from .blocks import to_text
 
-                lines += requested_ray_lines(program, results, names)
-    if program.ray_reports:
-        from .rays import ray_sections
-
-        lines += ray_sections(program, results)
-    if colour:  # per-wavelength values, colour requests, achromats, warnings
-        from .chromatic import colour_lines
-
-        lines += colour_lines(program, results)
+    lines += to_text(requested_blocks(program, results, colour))
     lines += ["", "expectations"] + expectation_lines(checked)
     return "\n".join(lines) + "\n"

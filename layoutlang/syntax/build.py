@@ -27,11 +27,22 @@ def _ident(token: Token | None) -> t.Ident | None:
     return None if token is None else t.Ident(str(token), pos=_token_pos(token))
 
 
+class OptionTwice(Exception):
+    """The same `, option value` appears twice in one statement (which one would count?)."""
+
+    def __init__(self, key: str, value) -> None:
+        super().__init__(key)
+        self.key, self.value = key, value
+
+
 def _options(items) -> dict:
-    """Collect trailing `, option value` pairs given as (key, value) tuples."""
+    """Collect trailing `, option value` pairs given as (key, value) tuples; an option given
+    twice is refused rather than one of them silently winning."""
     found: dict = {}
     for item in items:
         if isinstance(item, tuple):
+            if item[0] in found:
+                raise OptionTwice(item[0], item[1])
             found[item[0]] = item[1]
     return found
 
@@ -87,11 +98,13 @@ class _Builder(Transformer):
 
     def object_at_infinity(self, meta, items):
         options = _options(items)
-        return t.ObjectAtInfinity(options.get("field angle"), pos=_pos(meta))
+        return t.ObjectAtInfinity(options.get("field angle"), options.get("height"),
+                                  pos=_pos(meta))
 
     def object_before(self, meta, items):
         options = _options(items[1:])
-        return t.ObjectBefore(items[0], options.get("height"), pos=_pos(meta))
+        return t.ObjectBefore(items[0], options.get("height"), options.get("field angle"),
+                              pos=_pos(meta))
 
     def radius(self, meta, items):
         return t.Shape("radius", items[0], pos=_pos(meta))
@@ -285,6 +298,10 @@ class _Builder(Transformer):
     def report_seidel_sums(self, meta, items):
         return t.ReportRays("seidel sums", pos=_pos(meta))
 
+    def report_at_field(self, meta, items):
+        quantity, field, wavelength = items
+        return t.ReportAtField(quantity, field, wavelength, pos=_pos(meta))
+
     def ray_wavelength(self, meta, items):
         return items[-1]  # the WavelengthRef; the optional word 'wavelength' is noise
 
@@ -426,7 +443,7 @@ class _Builder(Transformer):
 
     def medium_model_glass(self, meta, items):
         name, index, abbe, *rest = items
-        return self._medium_model(meta, name, "model glass", rest, values=(index, abbe))
+        return self._medium_model(meta, name, "nd and abbe number", rest, values=(index, abbe))
 
     def medium_glass_code(self, meta, items):
         name, code, *rest = items
@@ -503,6 +520,17 @@ class _Builder(Transformer):
 _BUILDER = _Builder()
 
 
+def _option_twice(error: OptionTwice, file: str, text: str):
+    from ..errors import LayoutSyntaxError, Span
+
+    pos = error.value.pos if hasattr(error.value, "pos") else t.NO_POS
+    line_text = text.split("\n")[pos.line - 1] if 0 < pos.line <= text.count("\n") + 1 else ""
+    end = pos.end_column if pos.end_line == pos.line else len(line_text) + 1
+    return LayoutSyntaxError(f"'{error.key}' is given twice in this statement",
+                             Span(file, pos.line, pos.column, max(end, pos.column + 1), line_text),
+                             hint="keep one of them")
+
+
 def build_script(parse_tree, file: str, text: str) -> t.Script:
     """The syntax tree of one parsed file (statement by statement, so that a statement too
     deeply nested to build is reported at its own line)."""
@@ -517,7 +545,10 @@ def build_script(parse_tree, file: str, text: str) -> t.Script:
             try:
                 statements.append(_BUILDER.transform(child))
             except (RecursionError, VisitError) as error:
-                if not isinstance(getattr(error, "orig_exc", error), RecursionError):
+                cause = getattr(error, "orig_exc", error)
+                if isinstance(cause, OptionTwice):
+                    raise _option_twice(cause, file, text) from None
+                if not isinstance(cause, RecursionError):
                     raise
                 line = child.meta.line
                 line_text = text.split("\n")[line - 1] if line else ""

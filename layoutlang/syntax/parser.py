@@ -19,7 +19,7 @@ from ..resources import grammar_file
 from . import tree
 from .build import build_script
 
-__all__ = ["parse", "parser", "describe_terminal", "keyword_words"]
+__all__ = ["parse", "parser", "describe_terminal", "keyword_words", "without_bom", "GluedKeyword"]
 
 _DESCRIPTIONS = {
     "NUMBER": "a number",
@@ -46,6 +46,47 @@ def grammar_text() -> str:
     return "\n".join(parts)
 
 
+class GluedKeyword(UnexpectedInput):
+    """A keyword run together with the word after it ('intocrown'): raised by the token
+    check below and turned into a located syntax error by `parse` (a lark input error, so
+    the completer and the session's validator treat it as any other)."""
+
+    def __init__(self, keyword: Token, following: Token) -> None:
+        super().__init__(str(keyword))
+        self.keyword, self.following = keyword, following
+        self.line, self.column, self.pos_in_stream = keyword.line, keyword.column, keyword.start_pos
+
+
+#: Token types whose text is free (a name, a number, a unit, a text): everything else that
+#: ends in a letter is a keyword of the language.
+_FREE_TOKENS = frozenset({"NAME", "NUMBER", "UNIT", "STRING"})
+
+
+def _word_char(char: str) -> bool:
+    return char.isalnum() or char in "_µ"
+
+
+class _KeywordsEndWords:
+    """Lark post-lexer: a keyword must end where a word ends.
+
+    The contextual lexer only tries the terminals the grammar allows at each point, so after
+    `radius 50` it would read `intocrown` as the keyword `into` and the name `crown`. A keyword
+    (any fixed word of the grammar) directly followed by a letter or digit is refused instead.
+    """
+
+    always_accept = ()
+
+    def process(self, stream):
+        previous = None
+        for token in stream:
+            if (previous is not None and previous.type not in _FREE_TOKENS
+                    and previous.end_pos == token.start_pos
+                    and str(previous)[-1:].isalpha() and _word_char(str(token)[:1])):
+                raise GluedKeyword(previous, token)
+            previous = token
+            yield token
+
+
 @cache
 def parser() -> Lark:
     """The shared LALR parser (built once, cached on disk by lark)."""
@@ -56,6 +97,7 @@ def parser() -> Lark:
         propagate_positions=True,
         maybe_placeholders=True,
         cache=True,
+        postlex=_KeywordsEndWords(),
     )
 
 
@@ -118,12 +160,32 @@ def parse(text: str, file: str = "<script>") -> tree.Script:
     Raises:
         LayoutSyntaxError: with file:line:column, a caret and what was expected.
     """
+    text = without_bom(text)
     source = text if text.endswith("\n") else text + "\n"
     try:
         parse_tree = parser().parse(source)
+    except GluedKeyword as glued:
+        raise _glued_error(glued, source, file) from None
     except UnexpectedInput as error:
         raise _syntax_error(error, source, file) from None
     return build_script(parse_tree, file, text)
+
+
+def without_bom(text: str) -> str:
+    """The text without a UTF-8 byte-order mark at its start (editors on some systems write
+    one; it is not part of the script)."""
+    return text[1:] if text.startswith("\ufeff") else text
+
+
+def _glued_error(glued: GluedKeyword, source: str, file: str) -> LayoutSyntaxError:
+    keyword, following = glued.keyword, glued.following
+    lines = source.split("\n")
+    word = str(keyword) + str(following)
+    return LayoutSyntaxError(
+        f"{word!r} runs the word {str(keyword)!r} into {str(following)!r}",
+        _span(file, lines, keyword.line, keyword.column, len(word)),
+        expected=f"a space after {str(keyword)!r}",
+        hint=f"write '{keyword} {following}'")
 
 
 def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSyntaxError:

@@ -28,7 +28,7 @@ from . import tree as t
 from .unparse import binding_level, expression_text, unparse_statement
 
 __all__ = ["Edit", "RewriteError", "offsets", "apply_edits", "statement_edits", "rewrite",
-           "tidy_touched"]
+           "rewrite_script", "tidy_touched"]
 
 
 class RewriteError(LayoutError):
@@ -205,6 +205,26 @@ def statement_edits(source: str, old: Sequence[t.Statement],
     return edits
 
 
+def rewrite_script(source: str, old: Sequence[t.Statement], new: Sequence[t.Statement],
+                   file: str = "<script>") -> t.Script:
+    """Like `rewrite`, but returns the new text already parsed (`Script.text` is the text), for
+    callers that go on to interpret it."""
+    from .parser import parse
+
+    if tuple(old) == tuple(new):
+        return parse(source, file)
+    for whole in (False, True):  # token edits first; whole statements if those do not read back
+        text = apply_edits(source, statement_edits(source, old, new, whole))
+        try:
+            script = parse(text, file)
+        except LayoutError:
+            continue
+        if script.statements == tuple(new):
+            return script
+    raise RewriteError(f"{file}: the changed layout cannot be written into the script's "
+                       "text exactly; nothing was written (please report this)")
+
+
 def rewrite(source: str, old: Sequence[t.Statement], new: Sequence[t.Statement],
             file: str = "<script>") -> str:
     """The script's text with only what differs between `old` and `new` changed.
@@ -221,19 +241,9 @@ def rewrite(source: str, old: Sequence[t.Statement], new: Sequence[t.Statement],
     Raises:
         RewriteError: the edited text would not say `new` (nothing should be written then).
     """
-    from .parser import parse
-
     if tuple(old) == tuple(new):
         return source
-    for whole in (False, True):  # token edits first; whole statements if those do not read back
-        text = apply_edits(source, statement_edits(source, old, new, whole))
-        try:
-            if parse(text, file).statements == tuple(new):
-                return text
-        except LayoutError:
-            pass
-    raise RewriteError(f"{file}: the changed layout cannot be written into the script's "
-                       "text exactly; nothing was written (please report this)")
+    return rewrite_script(source, old, new, file).text
 
 
 def _changed_lines(before: str, after: str) -> set[int]:

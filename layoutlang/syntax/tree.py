@@ -16,7 +16,7 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
-    "Sample", "FocusTolerance", "ReportRays", "ExpectRays",
+    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "Sensor", "WavefrontGrid", "WavelengthWeights", "QualityPlace", "Quality", "QualityExpect",
     "ExpectCoverage", "QualityReport",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
@@ -153,12 +153,14 @@ class StartMedium(Statement):
 @node
 class ObjectAtInfinity(Statement):
     field_angle: Expr | None = None
+    height: Expr | None = None  # not meaningful at infinity: the interpreter says so
 
 
 @node
 class ObjectBefore(Statement):
     distance: Expr
     height: Expr | None = None
+    field_angle: Expr | None = None  # not meaningful for a near object: the interpreter says so
 
 
 @node
@@ -365,6 +367,15 @@ class ReportRays(Statement):
 
 
 @node
+class ReportAtField(Statement):
+    """`report Q at field F [at wavelength W]`: one ray quantity where `expect` takes it."""
+
+    quantity: Quantity
+    field: Expr
+    wavelength: Node | None = None
+
+
+@node
 class ExpectRays(Statement):
     """`expect Q at field F [at wavelength W] < V` or `expect Q < V depth of focus` (scale
     'depth of focus'); `wavelength` is a WavelengthRef (grammar/materials.lark) or None."""
@@ -383,7 +394,7 @@ class ExpectRays(Statement):
 
 @node
 class MediumModel(Statement):
-    """A medium with a dispersion model; kind is 'model glass' (values: index, Abbe number),
+    """A medium with a dispersion model; kind is 'nd and abbe number' (values: index, Abbe number),
     'glass code' (code: the digits as written), 'sellmeier' (pairs of B and λᵢ, or of B and C
     when squared), 'cauchy' (values: the coefficients) or 'table' (pairs of λ and n)."""
 

@@ -115,11 +115,17 @@ def _Stop(node: t.Stop) -> str:
 
 def _ObjectBefore(node: t.ObjectBefore) -> str:
     text = f"object {expression_text(node.distance)} before"
-    return text if node.height is None else text + f", height {expression_text(node.height)}"
+    return text + _object_options(node)
 
 
 def _ObjectAtInfinity(node: t.ObjectAtInfinity) -> str:
-    text = "object at infinity"
+    return "object at infinity" + _object_options(node)
+
+
+def _object_options(node) -> str:
+    text = ""
+    if node.height is not None:
+        text += f", height {expression_text(node.height)}"
     if node.field_angle is not None:
         text += f", field angle {expression_text(node.field_angle)}"
     return text
@@ -228,7 +234,7 @@ def _pairs(pairs) -> str:
 
 def _MediumModel(node: t.MediumModel) -> str:
     head = f"medium {node.name.text}"
-    if node.kind == "model glass":
+    if node.kind == "nd and abbe number":
         index, abbe = node.values
         text = f"{head} index {expression_text(index)}, abbe number {expression_text(abbe)}"
     elif node.kind == "glass code":
@@ -319,6 +325,8 @@ _RULES: dict[str, Callable] = {
     "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
     "ReportRays": lambda n: f"report {n.what}",
     "ExpectRays": _ExpectRays,
+    "ReportAtField": lambda n: f"report {n.quantity.text} at field {expression_text(n.field)}"
+    + ("" if n.wavelength is None else f" at wavelength {_wavelength_ref(n.wavelength)}"),
     # image quality
     "Sensor": lambda n: f"sensor {expression_text(n.width)} by {expression_text(n.height)}, "
     f"pixel pitch {expression_text(n.pitch)}",

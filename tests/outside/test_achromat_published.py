@@ -19,7 +19,7 @@ from layoutlang.materials.achromat import thin_achromat
 
 LINES = "wavelengths d primary, F, C\n"
 PAIRS = {
-    # model glasses from glass codes (an ordinary crown and flint)
+    # glasses from nd and νd, by glass code (an ordinary crown and flint)
     "glass": ("medium crown glass code 517642\nmedium flint glass code 620364\n", ""),
     # the plastic achromat of the stdlib: PMMA and polycarbonate
     "plastic": ("", "use materials\n"),
