@@ -573,6 +573,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, Qualit
         expectations = tuple(expectations)
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
+        self.refuse_unused_quality_settings(expectations)  # qualitystatements.py
         return self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports), tuple(self.hazards),
             dict(self.names), rays=rays, ray_reports=self.ray_reports(),

@@ -92,6 +92,7 @@ class QualityStatements:
                                    "from 8 to 512", self.span(node.value),
                                    expected="e.g. 'wavefront grid 64'")
         state["grid"] = int(value)
+        state["grid_node"] = (node, (self.file, self.lines))
 
     def statement_WavelengthWeights(self, node: t.WavelengthWeights) -> None:
         """wavelength weights W, W, ... (in the order of `wavelengths`)"""
@@ -127,6 +128,28 @@ class QualityStatements:
             state["reports"].append((node, (self.file, self.lines)))
 
     # --- at the end of the script -------------------------------------------------------------
+    def quality_reads_fields(self) -> bool:
+        """Whether `report quality` reads the `sample fields` (its rows)."""
+        return self._quality()["whole"]
+
+    def refuse_unused_quality_settings(self, expectations) -> None:
+        """`wavefront grid` or `wavelength weights` that no image-quality value reads is an
+        error at its words, not a setting silently ignored."""
+        state = self._quality()
+        used = state["whole"] or state["reports"] or any(
+            isinstance(e.request, QualityRequest) for e in expectations)
+        if used:
+            return
+        for key, words in (("grid_node", "wavefront grid"), ("weights", "wavelength weights")):
+            found = state.get(key)
+            if found is None:
+                continue
+            node, (self.file, self.lines) = found[-2], found[-1]
+            raise LayoutValueError(f"'{words}' has no effect: nothing in this script reads it",
+                                   self.span(node), hint="it is used by image-quality "
+                                   "expectations and 'report quality'; add one or remove "
+                                   "this line")
+
     def quality_plan(self, system) -> QualityPlan:
         """The script's sampling, weights and sensor, and its quality reports resolved."""
         state = self._quality()
