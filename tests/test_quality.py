@@ -39,7 +39,6 @@ surface back radius -146.7 into air, clear diameter 20
 stop 2 before front, f-number 6
 image at focus
 sensor 4.8 mm by 3.6 mm, pixel pitch 6 um
-wavefront grid 32
 """
 
 
@@ -132,7 +131,7 @@ def test_mtf_weights_geometric_fallback_and_through_focus():
 
 # --- the language ----------------------------------------------------------------------------
 def test_quality_expectations_are_checked_with_units():
-    program = loads(DOUBLET + """
+    program = loads(DOUBLET + """wavefront grid 32
 expect mtf at half nyquist at field 0 > 0.5
 expect mtf at 500 cycles per mm > 0.1
 expect wavefront error rms at field 0 < 0.05 waves
@@ -160,6 +159,7 @@ def test_sensor_places_are_solved_on_the_real_chief_ray():
      "given twice"),
     ("sensor 4 deg by 3 mm, pixel pitch 5 um", "must be a length"),
     ("wavefront grid 4", "from 8 to 512"),
+    ("wavefront grid 32", "has no effect"),
     ("wavelength weights 1, 2", "2 wavelength weight(s) for 1 wavelength(s)"),
     ("wavelength weights 0", "more than zero"),
     ("expect mtf at 50 cycles per parsec > 0.3", "unknown length unit"),

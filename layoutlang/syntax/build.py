@@ -392,6 +392,15 @@ class _Builder(Transformer):
     def quality_illumination(self, meta, items):
         return t.Quality("illumination", places=self._places(items), pos=_pos(meta))
 
+    def wavefront_measure(self, meta, items):
+        return str(items[0])
+
+    def orientation(self, meta, items):
+        return str(items[0])
+
+    def sensor_place(self, meta, items):
+        return str(items[0])
+
     def frequency_value(self, meta, items):
         value, per = items
         return ("value", value, _ident(per))
