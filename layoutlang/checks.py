@@ -2,18 +2,21 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
 
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
 from .engines.qualitysettings import QualityRequest
-from .quantities import PERCENT, POWER, QUANTITIES, RAY_QUANTITIES
+from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, DEGREES, PERCENT, POWER, QUANTITIES
+from .quantities import RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
+from .guard import guarded
 
 __all__ = ["CheckResult", "QuantityReading", "check_program", "evaluate_program", "read_quantity",
-           "display_unit", "to_display"]
+           "display_unit", "to_display", "surface_value", "beam_label"]
 
 
 @dataclass(frozen=True)
@@ -31,8 +34,8 @@ class CheckResult:
 def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
-    return {"length": units, "power": "diopters", PERCENT: "%", "waves": "waves",
-            "degrees": "deg"}.get(kind, "")
+    return {"length": units, "power": "diopters", PERCENT: "%", ANGLE: "mrad",
+            DECIBEL: "dB", DEGREES: "deg", "waves": "waves"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
@@ -41,9 +44,29 @@ def to_display(value, kind: str, units: str):
         return value * 1000.0 / LENGTH_UNITS[units]
     if kind == PERCENT and isinstance(value, (int, float)):
         return value * 100.0
+    if kind == ANGLE and isinstance(value, (int, float)):
+        return value * 1000.0
+    if kind == DEGREES and isinstance(value, (int, float)):
+        return math.degrees(value)
     return value
 
 
+def surface_value(request, system, results):
+    """`edge thickness of NAME` or `sag of NAME` (engines/buildable.py)."""
+    from .engines.buildable import edge_thickness, surface_sag
+
+    i = system.boundary_index(request.surface)
+    if request.name == "edge thickness":
+        return edge_thickness(system, results, i)
+    return surface_sag(system, results, i)
+
+
+def beam_label(name: str, place) -> str:
+    """A beam quantity's name with its place, as messages show it."""
+    return name if place is None or not place.label else f"{name} at {place.label}"
+
+
+@guarded
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     """The first-order results of a program and the outcome of each expectation, as every
     front end reports them (a symbolic script at its nominal values, which must all be given)."""
@@ -55,6 +78,7 @@ def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     return results, check_program(program, results)
 
 
+@guarded
 def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
     """Every expectation of the program with its outcome, in script order."""
     if results is None:
@@ -101,7 +125,8 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
         field: ray quantities: the field fraction (None: the quantity's default).
         wavelength: ray quantities: the wavelength in layout units (None: the primary).
         scale: 'depth of focus' when the value is wanted in depths of focus.
-        request: colour quantities and `at wavelength`: an engines.chromatic.Request.
+        request: colour quantities and `at wavelength`: an engines.chromatic.Request; beam
+            quantities: an engines.beams.Place (or None).
         kind: the quantity's kind when it is not in the table (e.g. a sensitivity).
         label: ray quantities: the label as the script wrote it (default: made from the
             field and wavelength).
@@ -109,7 +134,15 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
     units = program.system.units
     kind = kind or QUANTITIES[quantity].kind
     written, label = label, quantity
-    if isinstance(request, QualityRequest):  # image quality (engines/quality.py)
+    if quantity in BEAM_QUANTITIES:  # Gaussian beams (engines/beams.py)
+        from .engines.beams import beam_value
+
+        value = beam_value(program.system, quantity, request)
+        label = beam_label(quantity, request)
+    elif request is not None and hasattr(request, "surface"):  # edge thickness of NAME
+        value = surface_value(request, program.system, results)
+        label = request.describe()
+    elif isinstance(request, QualityRequest):  # image quality (engines/quality.py)
         from .engines.quality import image_quality
 
         value = image_quality(program.system, program.rays, program.quality.settings,

@@ -13,6 +13,7 @@ from typing import Sequence
 
 from . import __version__
 from .errors import LayoutError
+from .guard import quiet_numeric_warnings, unexpected_error
 
 __all__ = ["main"]
 
@@ -30,7 +31,7 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("file", help="a layout script (.lay)")
     run.add_argument("--json", action="store_true", help="machine-readable output")
     check = commands.add_parser("check", help="check the expectations of one or more scripts")
-    check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
+    check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay), or directories: every .lay below them")
     check.add_argument("--json", action="store_true", help="machine-readable output")
     check.add_argument("--junit", metavar="FILE", help="also write JUnit XML to FILE")
     check.add_argument("--against", metavar="REV",
@@ -56,6 +57,7 @@ def _parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     args = _parser().parse_args(argv)
+    quiet_numeric_warnings()
     try:
         if args.command == "run":
             return _run(args.file, args.json)
@@ -78,12 +80,23 @@ def main(argv: Sequence[str] | None = None) -> int:
                               expected="--against REV as well, e.g. --against main")
         return _check(args.files, args.json, args.junit, args.against, args.markdown)
     except LayoutError as error:  # the one place a script error becomes a message
-        print(error, file=sys.stderr)
+        file = _file_argument(args)
+        where = f"{file}: " if error.span is None and file and file not in str(error) else ""
+        print(f"{where}{error}", file=sys.stderr)
         return EXIT_ERROR
     except KeyboardInterrupt:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as error:  # noqa: BLE001 - never a traceback: an internal error, exit 2
+        print(unexpected_error(error, _file_argument(args), args.command), file=sys.stderr)
+        return EXIT_ERROR
+
+
+def _file_argument(args: argparse.Namespace) -> str | None:
+    file = getattr(args, "file", None)
+    files = getattr(args, "files", None)
+    return file if isinstance(file, str) else (files[0] if files and len(files) == 1 else None)
 
 
 def _repl(args: argparse.Namespace) -> int:
@@ -117,6 +130,28 @@ def _run(path: str, as_json: bool) -> int:
     return EXIT_OK if all(r.passed for r in checked) else EXIT_FAILED
 
 
+def scripts_in(paths: Sequence[str]) -> list[str]:
+    """The scripts named: a file as given, a directory as every .lay file below it (sorted).
+
+    Raises:
+        LayoutFileError: a directory holds no .lay file.
+    """
+    from pathlib import Path
+
+    from .errors import LayoutFileError
+
+    found: list[str] = []
+    for path in paths:
+        if Path(path).is_dir():
+            below = sorted(str(p) for p in Path(path).rglob("*.lay") if p.is_file())
+            if not below:
+                raise LayoutFileError(f"{path}: no .lay script below this directory")
+            found += below
+        else:
+            found.append(path)
+    return found
+
+
 def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
            against: str | None = None, markdown: str | None = None) -> int:
     from .reports.colour import paint, use_colour
@@ -126,12 +161,21 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
     documents = []
     outcomes = []  # for --junit
     reviews = []  # for --against: (path, review or None, summary)
+    paths = scripts_in(paths)
     for path in paths:
         try:
             program, _, checked = _evaluate(path)
             for warning in getattr(program, "warnings", ()):  # e.g. outside a material's range
                 print(warning, file=sys.stderr)
-        except LayoutError as error:
+            if program.system.beam is not None:  # clipping past a stated limit
+                from .reports.beams import beam_warnings
+
+                for warning in beam_warnings(program):
+                    print(f"{path}: {warning}", file=sys.stderr)
+        except BrokenPipeError:
+            raise
+        except Exception as error:  # noqa: BLE001 - a crash in one file never stops the next
+            error = unexpected_error(error, path, "check")
             status = EXIT_ERROR
             outcomes.append((path, [], str(error)))
             if as_json:

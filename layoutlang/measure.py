@@ -55,6 +55,10 @@ def unit_scale(unit: str, script_unit: str) -> tuple[float, int, int, bool]:
         return math.pi / 180.0, 0, 1, False
     if unit == "rad":
         return 1.0, 0, 1, False
+    if unit == "mrad":
+        return 1e-3, 0, 1, False
+    if unit == "dB":  # a ratio in decibels: a plain number, read where decibels are meant
+        return 1.0, 0, 0, False
     if unit in ("diopters", "diopter"):  # 1 diopter = 1 per metre
         return LENGTH_UNITS[script_unit] / 1000.0, -1, 0, False
     if unit == "%":

@@ -11,10 +11,14 @@ import difflib
 from dataclasses import dataclass
 
 __all__ = ["QuantityInfo", "QUANTITIES", "ALIASES", "lookup", "REPORT_ORDER", "RAY_QUANTITIES", "PERCENT",
-           "FIELD_DEFAULTS"]
+           "FIELD_DEFAULTS", "BEAM_QUANTITIES", "BEAM_PLACED", "ANGLE", "DECIBEL", "DEGREES",
+           "WAVELENGTH_PLACED"]
 
 LENGTH, POWER, NUMBER = "length", "power", "number"
+DEGREES = "degrees"  # an angle kept in radians, shown and written in degrees
 PERCENT = "percent"  # kept as a fraction, shown and written in percent
+ANGLE = "angle"  # kept in radians, shown in mrad
+DECIBEL = "decibel"  # a ratio in dB
 
 
 @dataclass(frozen=True)
@@ -77,7 +81,19 @@ _RAY_ROWS = [
     ("axial colour sum", LENGTH, "first-order longitudinal chromatic sum C I"),
     ("lateral colour sum", LENGTH, "first-order transverse chromatic sum C II"),
     ("petzval radius", LENGTH, "radius of the Petzval surface, + when its centre is downstream"),
+    # surfaces placed in space (engines/placed.py)
+    ("axis turn", DEGREES, "angle between the object-space and the image-space axis (the folds)"),
+    ("beam deviation", DEGREES, "angle the real axial ray turns by through the whole layout"),
+    ("prism deviation", DEGREES, "angle the real axial ray turns by through the (first) prism"),
+    ("image tilt", DEGREES, "tilt of the image plane from square to the image-space axis"),
+    ("image shift", LENGTH, "real axial ray on the image plane, from the image-space axis"),
+    ("parabasal focal length", LENGTH, "focal length about the real axial ray (y plane)"),
+    ("parabasal back focal distance", LENGTH, "last surface to the parabasal focus, along the "
+                                              "real axial ray"),
 ]
+
+#: Placement quantities that take `at wavelength W` (engines/placed.py).
+WAVELENGTH_PLACED = frozenset({"beam deviation", "prism deviation"})
 
 #: The field (fraction of the full field) a field-dependent ray quantity is taken at when the
 #: script does not say `at field ...`.
@@ -106,6 +122,38 @@ _COLOUR_ROWS = [
                                    "longest)"),
 ]
 QUANTITIES.update({name: QuantityInfo(name, kind, meaning) for name, kind, meaning in _COLOUR_ROWS})
+
+#: Quantities of one surface (engines/buildable.py), taken `of NAME`; not in the report.
+_SURFACE_ROWS = [
+    ("edge thickness", LENGTH, "thickness along the path from the surface to the next at the "
+                               "element's edge (the larger clear or drawn semi-aperture)"),
+    ("sag", LENGTH, "height of the surface above its vertex plane at its clear (or drawn) "
+                    "semi-aperture, + downstream"),
+]
+QUANTITIES.update({name: QuantityInfo(name, kind, meaning)
+                   for name, kind, meaning in _SURFACE_ROWS})
+
+#: Gaussian-beam quantities (engines/beams.py): they need a `beam`; the coupling ones a
+#: `fibre`. BEAM_PLACED are taken at a place: `at NAME` (a boundary, `image`, or a length
+#: named with `let`, after the last boundary) or `at D after`.
+_BEAM_ROWS = [
+    ("waist position", LENGTH, "the output beam's waist after the last boundary, + downstream "
+                               "(negative: a virtual waist upstream)"),
+    ("waist radius", LENGTH, "1/e² intensity radius of the output beam's waist"),
+    ("rayleigh range", LENGTH, "distance from the output waist at which the beam area doubles"),
+    ("divergence", ANGLE, "far-field half-angle of the output beam (1/e² radius), in mrad"),
+    ("beam radius", LENGTH, "1/e² intensity radius of the beam at a place"),
+    ("wavefront radius", LENGTH, "radius of the beam's wavefront at a place, + diverging "
+                                 "(centre upstream)"),
+    ("power passed", PERCENT, "share of the beam's power inside the clear apertures (all, or "
+                              "at one boundary): 1 − exp(−2a²/w²) each"),
+    ("coupling efficiency", PERCENT, "power coupled into the fibre's mode (overlap of the "
+                                     "two Gaussian modes, with offset and tilt)"),
+    ("coupling loss", DECIBEL, "−10·log10 of the coupling efficiency, in dB"),
+]
+BEAM_QUANTITIES = frozenset(name for name, _, _ in _BEAM_ROWS)
+BEAM_PLACED = frozenset({"beam radius", "wavefront radius", "power passed"})
+QUANTITIES.update({name: QuantityInfo(name, kind, meaning) for name, kind, meaning in _BEAM_ROWS})
 
 #: Other words people use for the same quantity.
 ALIASES = {
@@ -136,6 +184,13 @@ ALIASES.update({
     "transverse color": "lateral colour",
     "transverse chromatic aberration": "lateral colour",
     "partial dispersion": "relative partial dispersion",
+    "far-field divergence": "divergence",
+    "beam divergence": "divergence",
+    "output waist position": "waist position",
+    "output waist radius": "waist radius",
+    "spot size": "beam radius",
+    "coupling": "coupling efficiency",
+    "transmitted power": "power passed",
 })
 
 #: The order of the first-order report.

@@ -16,7 +16,7 @@ from typing import Any
 
 __all__ = [
     "Medium", "Boundary", "GroupPlacement", "ObjectSpec", "StopSpec", "ImageSpec", "Wavelength", "System",
-    "REFRACT", "MIRROR", "IDEAL",
+    "REFRACT", "MIRROR", "IDEAL", "BeamSpec", "FibreSpec",
 ]
 
 Number = Any  # float | numpy.ndarray | sympy.Expr
@@ -139,9 +139,38 @@ class StopSpec:
 @dataclass(frozen=True)
 class ImageSpec:
     """The image plane: at the paraxial focus (distance None) or a fixed distance after the
-    last boundary along the path."""
+    last boundary along the path; `tilt` (about x, y, z, radians) turns the plane about its
+    axis point, in the image-space axis frame (a sensor not square to the axis), or None."""
 
     distance: Number | None = None
+    tilt: tuple[Number, Number, Number] | None = None
+
+
+@dataclass(frozen=True)
+class BeamSpec:
+    """A Gaussian input beam (grammar/beams.lark): its 1/e² intensity waist radius, where the
+    waist lies (distance before the first vertex, negative when after it), its wavelength in
+    layout units (relative to the layout's surroundings, like `wavelengths`) and its beam
+    propagation ratio M² (1 for a pure Gaussian mode)."""
+
+    waist_radius: Number
+    waist_distance: Number
+    wavelength: Number
+    propagation_ratio: Number = 1.0
+
+
+@dataclass(frozen=True)
+class FibreSpec:
+    """A single-mode fibre receiving the beam: its mode-field diameter (1/e² intensity) at the
+    beam's wavelength, where its face is ('image': the image plane, 'waist': the beam's output
+    waist, 'after': `distance` after the last boundary), and its lateral offset and tilt (in
+    one plane, the tilt in radians)."""
+
+    mode_field_diameter: Number
+    place: str
+    distance: Number | None = None
+    offset: Number = 0.0
+    tilt: Number = 0.0
 
 
 @dataclass(frozen=True)
@@ -176,12 +205,16 @@ class System:
     title: str = ""
     units: str = "mm"
     environment: str = "standard air"  # or "vacuum": what indices and wavelengths are relative to
+    beam: BeamSpec | None = None  # a Gaussian input beam (engines/beams.py)
+    fibre: FibreSpec | None = None  # a fibre mode receiving the beam
     groups: tuple[Any, ...] = ()  # GroupPlacement: a placement applied to a run of boundaries
 
     @property
     def is_coaxial(self) -> bool:
-        """No boundary or group is placed off the axis: the engines' coaxial path applies."""
-        return not self.groups and all(b.placement is None for b in self.boundaries)
+        """No boundary or group is placed off the axis: the engines' coaxial path applies (a
+        zero placement is no placement, so it changes nothing, bit for bit)."""
+        return (all(g.placement.is_identity for g in self.groups)
+                and all(b.placement is None or b.placement.is_identity for b in self.boundaries))
 
     def medium(self, name: str) -> Medium:
         for medium in self.media:

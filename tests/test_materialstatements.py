@@ -188,7 +188,7 @@ def test_mistakes_in_media_and_wavelengths(text: str, error, words: str) -> None
     ("expect focal length between F and C < 1\n", "not taken 'between"),
     ("expect focal length at F at C < 1\n", "'at' is given twice"),
     ("expect focal length at wavelength x < 1\n", "unknown wavelength 'x'"),
-    ("expect focal length at 500 < 1\n", "expected: a unit"),
+    ("expect focal length at 500 < 1\n", "or a unit"),
     ("expect abbe number of nothing = 1 ± 1\n", "unknown medium 'nothing'"),
     ("report axial colour, focal length\n", "cannot be mixed"),
     ("achromat from glass and glass\n", "two different media"),

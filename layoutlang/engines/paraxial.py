@@ -21,7 +21,7 @@ from ..system import IDEAL, MIRROR, System
 
 __all__ = [
     "Step", "REFRACTION", "TRANSFER", "steps_of", "trace", "trace_samples", "matrix",
-    "Split", "split_at_stop", "formulas",
+    "Split", "split_at_stop", "formulas", "gaussian",
 ]
 
 Number = Any
@@ -230,3 +230,62 @@ class formulas:
     @staticmethod
     def magnification(a, b, c, d, object_tau):
         return 1 / (c * object_tau + d)
+
+
+class gaussian:
+    """A Gaussian beam through the same system matrix: the ABCD law of Kogelnik & Li (1966,
+    "Laser beams and resonators", Appl. Opt. 5:1550), written once over `+ - * /`.
+
+    In the engine's reduced form a beam is a complex ray (y, nu) and its reduced complex
+    parameter q̂ = q/n = y/nu obeys q̂' = (A q̂ + B)/(C q̂ + D). Started at its waist,
+    q̂ = i·b with b = π w0²/(M² λ0) (the confocal parameter reduced by n: b = z_R/n, the same
+    in every medium; λ0 the wavelength in the reference medium). Splitting the law into real
+    and imaginary parts (det = AD − BC = 1 for reduced matrices) gives every formula below as
+    a rational function of A, B, C, D, b, n: they run on floats, numpy arrays and the symbolic
+    engine's ratios alike. Distances are along the path, positive downstream; `n` is the
+    physical index of the space where the quantity is taken. Beam radii are returned squared
+    (the one square root is the caller's), so the symbolic forms stay rational.
+    """
+
+    @staticmethod
+    def abcd_law(a, b, c, d, q):
+        """q̂' = (A q̂ + B)/(C q̂ + D) (complex q̂; the reference form the others expand)."""
+        return (a * q + b) / (c * q + d)
+
+    @staticmethod
+    def radius_squared(a, b, c, d, waist_squared, confocal):
+        """w² at the output plane of (A B; C D) for a beam whose waist (radius² waist_squared)
+        is at its input plane: w² = w0² (A² + (B/b)²)."""
+        return waist_squared * (a * a + (b / confocal) * (b / confocal))
+
+    @staticmethod
+    def curvature_numerator(a, b, c, d, confocal):
+        """Re(1/q̂)·|A i b + B|²: zero where the wavefront is flat."""
+        return b * d + a * c * confocal * confocal
+
+    @staticmethod
+    def wavefront_radius(a, b, c, d, confocal, n):
+        """R = n (B² + A² b²)/(B D + A C b²); R > 0 when the wavefront diverges (its centre
+        lies upstream). The caller handles a vanishing denominator (a flat wavefront)."""
+        return n * (b * b + a * a * confocal * confocal) / (b * d + a * c * confocal * confocal)
+
+    @staticmethod
+    def waist_denominator(a, b, c, d, confocal):
+        """D² + C² b², the |C q̂ + D|² of the law: never zero for a real beam."""
+        return d * d + c * c * confocal * confocal
+
+    @classmethod
+    def waist_distance(cls, a, b, c, d, confocal, n):
+        """Where the new waist lies after the output plane: −n Re(q̂')."""
+        return -n * (a * c * confocal * confocal + b * d) / cls.waist_denominator(a, b, c, d,
+                                                                                   confocal)
+
+    @classmethod
+    def waist_radius_squared(cls, a, b, c, d, waist_squared, confocal):
+        """The new waist's radius²: w0² · Im(q̂')/b = w0² / (D² + C² b²)."""
+        return waist_squared / cls.waist_denominator(a, b, c, d, confocal)
+
+    @classmethod
+    def rayleigh_range(cls, a, b, c, d, confocal, n):
+        """The new Rayleigh range n·Im(q̂') = n b / (D² + C² b²)."""
+        return n * confocal / cls.waist_denominator(a, b, c, d, confocal)

@@ -223,8 +223,10 @@ class ImageQuality:
         if name in ("tangential focus", "sagittal focus", "chief-ray angle", "illumination",
                     "cos4 illumination"):
             row = self.field_row(field)
-            attribute = name.replace(" ", "_").replace("-", "_")
-            return getattr(row, attribute)
+            value = getattr(row, name.replace(" ", "_").replace("-", "_"))
+            if name == "chief-ray angle" and not isinstance(value, Unavailable):
+                return math.radians(value)  # expectations keep angles in radians
+            return value
         if name == "mtf":
             tr = self.transfer(field, (request.frequency,), request.wavelength, limit=False)
             if isinstance(tr, Unavailable):

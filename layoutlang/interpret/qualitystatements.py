@@ -15,12 +15,12 @@ from typing import Any
 from ..engines.qualitysettings import DEFAULT_CELLS, QualityRequest, QualitySettings, Sensor
 from ..errors import LayoutNameError, LayoutUnitError, LayoutValueError
 from ..measure import LENGTH_UNITS
-from ..quantities import LENGTH, NUMBER
+from ..quantities import DEGREES, LENGTH, NUMBER
 from ..syntax import tree as t
 
 __all__ = ["QualityStatements", "QualityPlan", "WAVES", "DEGREES", "QUALITY_KINDS"]
 
-WAVES, DEGREES = "waves", "degrees"
+WAVES = "waves"
 
 #: grammar kind (and measure) → (engine quantity name, kind of value)
 QUALITY_KINDS = {
@@ -208,7 +208,7 @@ class QualityStatements:
         if kind == WAVES:
             return lambda e: self._plain(e, "a wavefront error in waves")
         if kind == DEGREES:
-            return lambda e: math.degrees(self.angle(e, "a chief-ray angle"))
+            return lambda e: self.angle(e, "a chief-ray angle")  # radians, shown in degrees
         if kind == NUMBER:
             return self._fraction
         return lambda e: self.length(e, "the expected value")

@@ -94,11 +94,17 @@ class SymbolicStatements:
             state["nominal"][symbol] = value
 
     def _derivable(self, quantity: t.Quantity, allow_equation: bool = False) -> str:
-        from ..symbolic.layout import DERIVABLE
+        from ..symbolic.layout import BEAM_DERIVABLE, DERIVABLE
 
         if allow_equation and quantity.text in ("conjugate equation", "lensmaker equation"):
             return quantity.text
         info = self.quantity(quantity)
+        if allow_equation and info.name in BEAM_DERIVABLE:  # `derive` only
+            if self._beams()["beam node"] is None:
+                raise LayoutValueError(f"{info.name} needs a beam", self.span(quantity),
+                                       hint="declare it with 'beam waist radius W, waist D "
+                                            "before, wavelength L'")
+            return info.name
         if info.name not in DERIVABLE:
             raise LayoutValueError(f"{info.name} has no closed form here", self.span(quantity),
                                    expected="a first-order quantity such as image distance")

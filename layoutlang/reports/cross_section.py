@@ -20,7 +20,8 @@ from ..engines.paraxial import TRANSFER, Step
 from ..errors import LayoutError, LayoutValueError
 from ..system import IDEAL, MIRROR, System
 
-__all__ = ["Profile", "Element", "RayPath", "CrossSection", "cross_section", "sag"]
+__all__ = ["Profile", "Element", "RayPath", "BeamEnvelope", "CrossSection", "cross_section",
+           "sag", "beam_envelope"]
 
 #: Extra room beyond the ray bundle when no clear diameter is given (the glass is never cut
 #: exactly at the ray): common practice in drawings, the value is ours.
@@ -93,6 +94,16 @@ class RayPath:
 
 
 @dataclass(frozen=True)
+class BeamEnvelope:
+    """The Gaussian beam's 1/e² radius along the path, in global coordinates (a mirror folds
+    it back like the rays), and its waists as (z, radius, words)."""
+
+    z: tuple[float, ...]
+    radius: tuple[float, ...]
+    waists: tuple[tuple[float, float, str], ...] = ()
+
+
+@dataclass(frozen=True)
 class CrossSection:
     """Everything a drawing shows, in global coordinates."""
 
@@ -105,6 +116,7 @@ class CrossSection:
     image: tuple[float, float] | None  # (z, semi-height of the drawn image plane)
     object_plane: tuple[float, float] | None  # (z, height) when the object is drawn
     notes: list[str] = field(default_factory=list)
+    beam: BeamEnvelope | None = None  # a layout with a Gaussian beam
 
     def extent(self) -> tuple[float, float, float]:
         """(z min, z max, largest |y|) of everything drawn."""
@@ -117,6 +129,9 @@ class CrossSection:
             if item is not None:
                 zs.append(item[0])
                 ys.append(abs(item[1]))
+        if self.beam is not None:
+            zs.extend((min(self.beam.z), max(self.beam.z)))
+            ys.append(max(self.beam.radius))
         return min(zs), max(zs), max(ys) if ys else 1.0
 
 
@@ -161,6 +176,8 @@ def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | No
     n0 = system.indices()[0]
     obj = system.object
     object_steps = [] if obj.at_infinity else [Step(TRANSFER, float(obj.distance) / n0)]
+    if system.stop is None and system.beam is not None:  # the beam is drawn instead
+        return None, None, notes
     if system.stop is None:
         notes.append("no stop given: the rays are drawn through the edge of the first boundary")
         first = system.boundaries[0]
@@ -232,6 +249,11 @@ def _finite(section: CrossSection) -> CrossSection:
     for name in ("stop", "image", "object_plane"):
         value = getattr(section, name)
         parts[name] = value if value is None or finite(*value) else None
+    beam = section.beam
+    if beam is not None and not finite(*beam.z, *beam.radius):
+        parts["beam"] = None
+        notes.append("the beam is not drawn: its size leaves the range of numbers a drawing "
+                     "can show")
     section = replace(section, rays=rays, notes=notes, **parts)
     z_min, z_max, y_max = section.extent()
     span = z_max - z_min
@@ -353,7 +375,7 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         tips = [abs(r.virtual_y[-1] if r.virtual_y else r.y[-1]) for r in rays]
         height = max(tips + [0.15 * max(p.semi_aperture for p in profiles)])
         image = (z_last + sense_k * after, 1.15 * height)
-    if exact:
+    if exact and (starts or system.beam is None):  # a beam without a stop: no rays
         traced = _exact_rays(system, results, z_first - before,
                              z_last + sense_k * (after if after >= 0 else lead))
         if isinstance(traced, str):
@@ -368,8 +390,82 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         if system.stop.after >= 0 and system.stop.offset == 0:  # at a boundary: at its rim
             stop_z = profiles[system.stop.after].z_at(radius)
         stop = (stop_z, radius)
+    beam = None
+    if system.beam is not None:
+        beam = beam_envelope(system, length_scale, lead, notes)
     return CrossSection(system.title, system.units, profiles, elements, rays, stop, image,
-                        object_plane, notes)
+                        object_plane, notes, beam)
+
+
+def _micro(value: float, units: str) -> str:
+    """A beam radius in words: in µm when under a millimetre, else in the layout's units."""
+    from ..measure import LENGTH_UNITS
+    from ..testing import format_number
+
+    mm = value * LENGTH_UNITS[units]
+    if mm < 1:
+        return f"{format_number(mm * 1000, 3)} µm"
+    return f"{format_number(value, 3)} {units}"
+
+
+def beam_envelope(system: System, length_scale: float, lead: float,
+                  notes: list[str]) -> BeamEnvelope | None:
+    """The beam's envelope from its input waist (when near enough upstream) to its output
+    waist, the fibre face or the image plane (when near enough downstream), waists marked."""
+    from ..engines.beams import BeamPropagation
+
+    beam = BeamPropagation(system)
+    if beam.problem() is not None:
+        notes.append(f"the beam is not drawn: {beam.problem()}")
+        return None
+    vertices = _vertices(system)
+    senses = system.directions()
+    reach = 3 * max(length_scale, lead)
+    waist_before = float(system.beam.waist_distance)
+    before = waist_before if 0 < waist_before <= reach else lead
+    if waist_before > reach:
+        notes.append("the beam's input waist is far upstream: the beam is cut short before "
+                     "the layout")
+    out = beam.output()
+    ends = [float(out.waist_position)]
+    if system.fibre is not None:
+        face = beam.fibre_face()
+        if not isinstance(face, Unavailable):
+            ends.append(float(face))
+    plane = beam.image_plane()
+    if not isinstance(plane, Unavailable):
+        ends.append(float(plane))
+    ends = [e for e in ends if 0 < e <= reach]
+    after = 1.15 * max(ends) if ends else lead
+    points = beam.envelope(before, after)
+
+    def z_of(space: int, distance: float) -> float:
+        if space == 0:
+            return vertices[0] + distance
+        return vertices[space - 1] + senses[space] * distance
+
+    units = system.units
+    waists = []
+    if 0 < waist_before <= reach:
+        waists.append((z_of(0, -waist_before), float(system.beam.waist_radius),
+                       f"input waist {_micro(float(system.beam.waist_radius), units)}"))
+    for i, gap in enumerate(system.gaps):
+        inside = float(beam.waist_in_space(i))
+        if 0 < inside < float(gap):
+            a, b, c, d = beam.matrix_to_boundary(i)
+            radius = math.sqrt(float(beam.waist_squared) / float(
+                paraxial.gaussian.waist_denominator(a, b, c, d, beam.confocal)))
+            waists.append((z_of(i + 1, inside), radius, f"waist {_micro(radius, units)}"))
+    if 0 < out.waist_position <= after:
+        waists.append((z_of(len(system.boundaries), float(out.waist_position)),
+                       float(out.waist_radius),
+                       f"output waist {_micro(float(out.waist_radius), units)}"))
+    elif out.waist_position <= 0:
+        notes.append("the output waist is virtual (upstream of the last boundary): not marked")
+    else:
+        notes.append("the output waist lies beyond the drawing: see the report")
+    return BeamEnvelope(tuple(z_of(p.space, p.distance) for p in points),
+                        tuple(p.radius for p in points), tuple(waists))
 
 
 def _flip(start):
@@ -431,7 +527,7 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
         rays = start
         for k in boundary_steps:
             rays = realrays.trace(start.copy(), geo, indices, geo.steps[: k + 1])
-            if rays.status[0] in (realrays.MISSED, realrays.TOTAL_REFLECTION) or \
+            if rays.status[0] in realrays.LOST or \
                     not math.isfinite(float(rays.y[0])):
                 lost = f"an exact {role} ray is {realrays.STATUS_WORDS[int(rays.status[0])]} at " \
                        f"{geo.steps[k].name}"

@@ -15,6 +15,7 @@ from typing import Any
 
 from ..system import IDEAL, MIRROR, System
 from .cross_section import CrossSection, cross_section
+from ..guard import guarded
 
 __all__ = ["figure", "save_drawing", "drawing_bytes", "STYLE"]
 
@@ -28,11 +29,15 @@ STYLE = {
     "ray": "#0f6e73",
     "chief_alpha": 0.9,
     "font": 8,
+    "beam": "#b8322b",  # the Gaussian beam's envelope: a translucent warm band
+    "beam_alpha": 0.22,
 }
 
 #: The drawing's width in inches; its height follows the layout (equal scales on both axes).
 FIGURE_WIDTH = 9.0
 MAX_AXES_HEIGHT = 6.5
+#: Height in inches of the panel that shows a Gaussian beam's radius at an enlarged scale.
+BEAM_PANEL = 2.1
 
 _METADATA = {"svg": {"Date": None}, "pdf": {"CreationDate": None, "ModDate": None},
              "png": {}}
@@ -136,10 +141,11 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
             break
         axes_w *= MAX_AXES_HEIGHT / axes_h
     header, footer = 0.75, 0.5 + 0.15 * len(notes)
-    fig_h = header + axes_h + footer
+    panel = BEAM_PANEL if section.beam is not None else 0.0  # the beam at an enlarged scale
+    fig_h = header + axes_h + footer + panel
     fig = Figure(figsize=(FIGURE_WIDTH, fig_h), dpi=110)
-    ax = fig.add_axes([(FIGURE_WIDTH - axes_w) / 2 / FIGURE_WIDTH, footer / fig_h,
-                       axes_w / FIGURE_WIDTH, axes_h / fig_h])
+    left = (FIGURE_WIDTH - axes_w) / 2 / FIGURE_WIDTH
+    ax = fig.add_axes([left, (footer + panel) / fig_h, axes_w / FIGURE_WIDTH, axes_h / fig_h])
     ink, font = STYLE["ink"], STYLE["font"]
 
     ax.axhline(0, color=STYLE["axis"], lw=0.7, ls=(0, (8, 3, 1, 3)), zorder=1)
@@ -180,6 +186,8 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
                     va="top", fontsize=font, color=ink)
 
     handles = []
+    if section.beam is not None:
+        handles.append(_draw_beam(ax, section.beam))
     for label, colour, rays in sets:
         for ray in rays.rays:
             chief = ray.role == "chief"
@@ -191,16 +199,21 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
         if label:
             handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
     # the legend lists the wavelengths from short to long, wherever the primary is drawn
-    handles.sort(key=lambda h: float(h.get_label().split()[0]) if h.get_label()[:1].isdigit()
-                 else 0.0)
+    handles.sort(key=lambda h: _legend_order(h.get_label()))
     kind = "exact" if any(r.label == "exact" for r in section.rays) else "paraxial"
-    handles.append(Line2D([], [], color=ink, lw=0.9, label=f"marginal ray ({kind})"))
-    handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)), label=f"chief ray ({kind})"))
+    if section.rays or section.beam is None:
+        handles.append(Line2D([], [], color=ink, lw=0.9, label=f"marginal ray ({kind})"))
+        handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)),
+                              label=f"chief ray ({kind})"))
     fig.legend(handles=handles, loc="upper left", fontsize=font, frameon=False,
                ncol=min(len(handles), 5), bbox_to_anchor=(0.1 / FIGURE_WIDTH, 1 - 0.32 / fig_h))
 
     ax.set_xlim(z_min - 0.04 * width, z_max + 0.04 * width)
     ax.set_ylim(y_bottom, y_top)
+    if section.beam is not None:
+        beam_ax = fig.add_axes([left, (footer + 0.2) / fig_h, axes_w / FIGURE_WIDTH,
+                                (panel - 0.85) / fig_h])
+        _beam_panel(beam_ax, section, ax.get_xlim())
     for side in ("top", "right", "left"):
         ax.spines[side].set_visible(False)
     ax.spines["bottom"].set_color(STYLE["axis"])
@@ -214,6 +227,70 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
         fig.text(0.2 / FIGURE_WIDTH, 0.06 / fig_h, "\n".join(notes), fontsize=font - 1,
                  color=STYLE["axis"], va="bottom")
     return fig
+
+
+def _draw_beam(ax: Any, beam) -> Any:
+    """The 1/e² envelope as a translucent band with its edges, each waist a short bar across
+    the band and its radius in words; returns the legend entry."""
+    from matplotlib.patches import Patch
+
+    colour, ink, font = STYLE["beam"], STYLE["ink"], STYLE["font"]
+    upper = list(beam.radius)
+    lower = [-r for r in beam.radius]
+    ax.fill_between(beam.z, lower, upper, color=colour, alpha=STYLE["beam_alpha"], lw=0,
+                    zorder=2.5)
+    for edge in (upper, lower):
+        ax.plot(beam.z, edge, color=colour, lw=0.6, zorder=2.6)
+    for z, radius, _ in beam.waists:  # named in the enlarged panel below
+        ax.plot([z, z], [-radius, radius], color=colour, lw=1.6, zorder=5,
+                solid_capstyle="butt")
+    return Patch(facecolor=colour, alpha=0.45, edgecolor=colour, lw=0.6,
+                 label="beam, 1/e² radius (Gaussian)")
+
+
+def _beam_panel(ax: Any, section: CrossSection, xlim: tuple[float, float]) -> None:
+    """The beam's 1/e² radius against z at an enlarged radial scale (the cross-section above
+    is true to scale, where a beam is often a thin line): the envelope, a thin line at each
+    boundary with its name, and each waist with its radius."""
+    from ..measure import LENGTH_UNITS
+
+    beam = section.beam
+    colour, ink, axis, font = STYLE["beam"], STYLE["ink"], STYLE["axis"], STYLE["font"]
+    in_mm = max(beam.radius) * LENGTH_UNITS[section.units]
+    scale, unit = (1000 / LENGTH_UNITS[section.units], "µm") if in_mm < 1 else (1.0,
+                                                                               section.units)
+    radius = [r * scale for r in beam.radius]
+    top = 1.25 * max(radius)
+    ax.fill_between(beam.z, [-r for r in radius], radius, color=colour,
+                    alpha=STYLE["beam_alpha"], lw=0)
+    for sign in (1, -1):
+        ax.plot(beam.z, [sign * r for r in radius], color=colour, lw=0.9)
+    ax.axhline(0, color=axis, lw=0.6, ls=(0, (8, 3, 1, 3)))
+    for profile in section.profiles:
+        ax.axvline(profile.z, color=axis, lw=0.6, ls=(0, (2, 2)))
+        ax.annotate(profile.name, (profile.z, top), (2, -2), textcoords="offset points",
+                    ha="left", va="top", fontsize=font - 1, color=axis)
+    width = xlim[1] - xlim[0]
+    for z, r, words in beam.waists:
+        ax.plot([z, z], [-r * scale, r * scale], color=colour, lw=1.8, solid_capstyle="butt")
+        where = (z - xlim[0]) / width  # names near an edge lean inwards
+        align, shift = ("left", 3) if where < 0.15 else ("right", -3) if where > 0.85 else (
+            "center", 0)
+        ax.annotate(words, (z, -r * scale), (shift, -3), textcoords="offset points",
+                    ha=align, va="top", fontsize=font - 1, color=ink)
+    ax.set_xlim(*xlim)
+    ax.set_ylim(-top, top)
+    for side in ("top", "right"):
+        ax.spines[side].set_visible(False)
+    for side in ("bottom", "left"):
+        ax.spines[side].set_color(axis)
+    ax.tick_params(colors=axis, labelsize=font - 1)
+    # the radius labels inside the axes: the cross-section above leaves no margin for them
+    ax.tick_params(axis="y", direction="in", pad=-3)
+    for label in ax.get_yticklabels():
+        label.set_horizontalalignment("left")
+    ax.set_title(f"the beam at an enlarged radial scale: 1/e² radius in {unit}",
+                 fontsize=font, color=ink, loc="left", pad=3)
 
 
 def _label_levels(section: CrossSection, width: float) -> list[int]:
@@ -254,6 +331,7 @@ def _draw_profile(ax: Any, profile, y_max: float) -> None:
         ax.plot(z, y, color=ink, lw=1.0, zorder=4)
 
 
+@guarded
 def save_drawing(system: System, path: str | Path, kind: str | None = None,
                  hazards: tuple[str, ...] = (), exact: bool = True) -> None:
     """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix)."""
@@ -261,6 +339,7 @@ def save_drawing(system: System, path: str | Path, kind: str | None = None,
     Path(path).write_bytes(drawing_bytes(system, kind, hazards, exact))
 
 
+@guarded
 def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = (),
                   exact: bool = True) -> bytes:
     """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
@@ -278,3 +357,12 @@ def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = 
 
 
 
+
+
+def _legend_order(label: str) -> float:
+    """Where a legend entry goes, short wavelengths first: the first number of its label (one
+    entry lists every wavelength, '587.562, 486.1 nm', when the media do not disperse)."""
+    import re
+
+    match = re.match(r"\s*([0-9]+(?:\.[0-9]*)?)", label)
+    return float(match.group(1)) if match else 0.0

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from ..testing import format_number, with_unit
+from ..testing import with_unit
 from .engine import ExpectationChange, QuantityChange, Review
 
 __all__ = ["session_lines", "summary", "text", "markdown", "markdown_document", "as_json",
@@ -105,7 +105,7 @@ def _statement_rows(found: Review, indent: str) -> list[str]:
     rows = []
     for change in found.statements:
         if change.kind == "inserted":
-            detail = [change.new, f"({change.where})"]
+            detail = [change.new, f"({change.where})" if change.where else ""]
         elif change.kind == "removed":
             detail = [change.old, ""]
         elif change.kind == "renamed":
@@ -135,9 +135,15 @@ def text(found: Review, old_label: str, new_label: str) -> str:
             lines += [f"  {group}"] + _quantity_rows(changes, "    ")
     if found.expectations:
         lines += ["", "expectations"]
-        lines += [f"  line {(c.new or c.old).line}: {_expectation_line(c)}"
-                  for c in found.expectations]
+        lines += [f"  {_line_words(c)}: {_expectation_line(c)}" for c in found.expectations]
     return "\n".join(lines) + "\n"
+
+
+def _line_words(change: ExpectationChange) -> str:
+    """The line an expectation is on (the old file's line when it went away)."""
+    if change.new is None:
+        return f"line {change.old.line} before"
+    return f"line {change.new.line}"
 
 
 def _cell(value: str) -> str:
@@ -162,7 +168,7 @@ def markdown(found: Review, old_label: str, new_label: str) -> str:
                   "| --- | --- | --- | --- |"]
         for c in found.statements:
             what = c.what + (f" (was {c.where})" if c.kind == "renamed" else
-                             f" ({c.where})" if c.kind == "inserted" else "")
+                             f" ({c.where})" if c.kind == "inserted" and c.where else "")
             lines.append(f"| {c.kind} | {_cell(what)} | {_code(c.old)} | {_code(c.new)} |")
         lines.append("")
     if found.quantities:
@@ -173,15 +179,15 @@ def markdown(found: Review, old_label: str, new_label: str) -> str:
                          f"{_cell(c.new_text)} | {_cell(difference_text(c))} |")
         lines.append("")
     if found.expectations:
-        lines += ["#### Expectations", "", "| state | line | expectation | detail |",
-                  "| --- | ---: | --- | --- |"]
+        lines += ["#### Expectations", "", "| state | where | expectation | detail |",
+                  "| --- | --- | --- | --- |"]
         for c in found.expectations:
             state = {"new": f"new, {_word(c.new.passed) if c.new else ''}",
                      "now": f"now {_word(c.new.passed) if c.new else ''} "
                             f"(was {_word(c.old.passed) if c.old else ''})",
                      "gone": "no longer checked"}[c.kind]
             detail = (c.new or c.old).message if c.kind != "gone" else ""
-            lines.append(f"| {state} | {(c.new or c.old).line} | {_code(c.text)} | "
+            lines.append(f"| {state} | {_line_words(c)} | {_code(c.text)} | "
                          f"{_cell(detail)} |")
         lines.append("")
     return "\n".join(lines).rstrip("\n") + "\n"
@@ -192,6 +198,8 @@ def _reading_json(reading) -> dict | None:
 
     if reading is None:
         return None
+    if reading.words:
+        return {"value": None, "text": str(reading.value)}
     if reading.number is None:
         return {"value": None, "unit": reading.unit, "why": str(reading.value)}
     return {"value": round12(reading.number), "unit": reading.unit, "shown": reading.text}

@@ -207,8 +207,12 @@ def statement_changes(old: Sequence[t.Statement], new: Sequence[t.Statement]
                                            unparse_statement(n.statement), line(was),
                                            line(n.statement)))
 
-    previous_words = {j: (new_items[j - 1].what if j > 0 else "the start")
-                      for j in range(len(new_items))}
+    previous_words = {}  # what an insertion follows (gaps are named by their boundary)
+    last = "the start"
+    for j, item in enumerate(new_items):
+        previous_words[j] = last
+        if item.family != "gap":
+            last = item.what
     for op, i1, i2, j1, j2 in matcher.get_opcodes():
         if op == "equal":
             for o, n in zip(old_items[i1:i2], new_items[j1:j2]):
@@ -224,7 +228,8 @@ def statement_changes(old: Sequence[t.Statement], new: Sequence[t.Statement]
             if n.key in old_by_key:
                 pair(old_by_key[n.key], n, True)
             else:
+                where = "" if n.family == "gap" else f"after {previous_words[j]}"
                 changes.append(StatementChange("inserted", n.what, None,
                                                unparse_statement(n.statement), None,
-                                               line(n.statement), f"after {previous_words[j]}"))
+                                               line(n.statement), where))
     return changes

@@ -111,6 +111,18 @@ class Profile:
             z = z + self._qcon(rho)[0]
         return z
 
+    def polynomial(self, rho: Number) -> tuple[Number, Number]:
+        """The part of the sag beyond the conic and its rho-derivative, (P, dP/drho): zero
+        for a sphere or conic. The exact-ray engine intersects the conic c ρ + c (1 + κ) w² = 2 w
+        in w = z - P(ρ), which needs no square root."""
+        value, derivative = 0, 0
+        if self.even_terms:
+            value, derivative = _even_polynomial(self.even_terms, rho)
+        if self.q_terms:
+            q_value, q_derivative = self._qcon(rho)
+            value, derivative = value + q_value, derivative + q_derivative
+        return value, derivative
+
     def slope(self, rho: Number) -> Number:
         """dz/d(rho): the normal at (x, y) is proportional to (-2x·slope, -2y·slope, 1)."""
         s = self.base_slope(rho)

@@ -16,7 +16,7 @@ from ..quantities import lookup
 from ..errors import LayoutValueError
 from .algebra import Ratio, TooLarge
 from .convert import TooComplex
-from .layout import SymbolicLayout
+from .layout import ROOTED, SymbolicLayout
 from .program import SymbolicPart
 from .structured import MATRIX_QUANTITIES, Structured, structured_form, with_exact_values
 
@@ -114,12 +114,31 @@ def derive(part: SymbolicPart, name: str, print_terms: int = PRINT_TERMS) -> Der
     result.ratio, result.reduced, result.terms = reduced, proven, reduced.terms()
     result.nominal_value = _nominal_value(layout, reduced)
     result.notes = list(layout.notes[seen:])
+    if name in ROOTED:  # the ring holds the square (a beam's waist radius)
+        return _rooted(result, print_terms)
     if result.terms > print_terms:
         result.too_large = (f"the expanded form has {result.terms} terms, too many to read; "
                             "shown with named intermediates instead")
         result.structured = _structured(part, name)
         return result
     result.expr = reduced.to_expr()
+    return result
+
+
+def _rooted(result: Derived, print_terms: int) -> Derived:
+    """The closed form of a quantity the ring holds squared: the square root of the ratio
+    (the ratio itself stays the square, for sizes and the numpy code of its square)."""
+    import sympy as sp
+
+    if result.nominal_value is not None:
+        result.nominal_value = result.nominal_value ** 0.5
+    result.notes.append("the closed form is the square root of a rational function of the "
+                        "layout's values (the beam radius is)")
+    if result.terms > print_terms:
+        result.too_large = (f"the expanded form has {result.terms} terms under the root, too "
+                            "many to read")
+        return result
+    result.expr = sp.sqrt(result.ratio.to_expr())
     return result
 
 

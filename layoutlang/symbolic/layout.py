@@ -15,12 +15,12 @@ from typing import Any, Callable
 
 from ..engines import paraxial
 from ..engines.firstorder import Unavailable
-from ..engines.paraxial import TRANSFER, Step, formulas
+from ..engines.paraxial import TRANSFER, Step, formulas, gaussian
 from ..system import Medium, ObjectSpec, StopSpec, System
 from .algebra import Ratio, RingContext, TooLarge
 from .convert import make_context, to_ratio
 
-__all__ = ["SymbolicLayout", "DERIVABLE"]
+__all__ = ["SymbolicLayout", "DERIVABLE", "BEAM_DERIVABLE", "ROOTED"]
 
 #: Every quantity `derive` knows, in report order (the names of `quantities.py`).
 DERIVABLE = (
@@ -35,6 +35,14 @@ DERIVABLE = (
 )
 
 
+#: The Gaussian-beam quantities `derive` knows (a script with a `beam`): rational functions
+#: of the matrix from the input waist and the confocal parameter b = π w0²/(M² λ).
+BEAM_DERIVABLE = ("waist position", "waist radius", "rayleigh range")
+
+#: Quantities the ring holds squared (their closed form is the square root of the ratio).
+ROOTED = frozenset({"waist radius"})
+
+
 def _system_values(system: System) -> list[Any]:
     values: list[Any] = [m.index for m in system.media]
     for b in system.boundaries:
@@ -46,6 +54,12 @@ def _system_values(system: System) -> list[Any]:
         values += [system.stop.offset, system.stop.size]
     if system.image.distance is not None:
         values.append(system.image.distance)
+    if system.beam is not None:
+        import sympy as sp
+
+        beam = system.beam
+        values += [beam.waist_radius, beam.waist_distance, beam.wavelength,
+                   beam.propagation_ratio, sp.pi]
     return [v for v in values if v is not None]
 
 
@@ -88,7 +102,17 @@ class SymbolicLayout:
                                                      size=r(s.stop.size)),
             image=replace(s.image, distance=None if s.image.distance is None
                           else r(s.image.distance)),
+            beam=None if s.beam is None else replace(
+                s.beam, waist_radius=r(s.beam.waist_radius),
+                waist_distance=r(s.beam.waist_distance), wavelength=r(s.beam.wavelength),
+                propagation_ratio=r(s.beam.propagation_ratio)),
+            fibre=None,
         )
+        if s.beam is not None:  # b = π w0²/(M² λ), the reduced confocal parameter
+            beam = self.ring_system.beam
+            self.waist_squared = beam.waist_radius * beam.waist_radius
+            self.confocal = r(sp.pi) * self.waist_squared / (beam.propagation_ratio
+                                                             * beam.wavelength)
 
     # --- the matrix, once ------------------------------------------------------------------
     def _matrix(self) -> tuple[Ratio, Ratio, Ratio, Ratio]:
@@ -346,7 +370,28 @@ class SymbolicLayout:
         return y_vertex, nu_vertex, 2 * y_stop * self._sign(y_stop, "stop height")
 
 
+    def _beam(self, name: str) -> Ratio | Unavailable:
+        """A beam quantity through the same matrix as the numeric engine (engines/beams.py):
+        the input waist's transfer, then the layout's steps, then `paraxial.gaussian`."""
+        s = self.ring_system
+        if s.beam is None:
+            return Unavailable("none: the layout has no beam")
+        if "beam abcd" not in self._cache:
+            lead = Step(TRANSFER, s.beam.waist_distance / self.n0)
+            steps = [lead] + paraxial.steps_of(s)
+            self._cache["beam abcd"] = self._as_ratios(paraxial.matrix(steps))
+        a, b, c, d = self._cache["beam abcd"]
+        conf, nk = self.confocal, self.nk
+        if name == "waist position":
+            return gaussian.waist_distance(a, b, c, d, conf, nk)
+        if name == "rayleigh range":
+            return gaussian.rayleigh_range(a, b, c, d, conf, nk)
+        return gaussian.waist_radius_squared(a, b, c, d, self.waist_squared, conf)  # ROOTED
+
+
 _METHODS: dict[str, Callable[[SymbolicLayout], Any]] = {}
+for _name in BEAM_DERIVABLE:
+    _METHODS[_name] = lambda self, n=_name: self._beam(n)
 for _name in ("power", "focal length", "object focal length", "effective focal length",
               "back focal distance", "front focal distance", "front principal point",
               "back principal point", "front nodal point", "back nodal point"):

@@ -314,13 +314,61 @@ class _Builder(Transformer):
         quantity, op, value = items
         return t.ExpectRays(quantity, op, value, None, None, "depth of focus", pos=_pos(meta))
 
+    # --- placement (grammar/placement.lark) ------------------------------------------------
+    def place_through(self, meta, items):
+        return _ident(items[0])
+
+    def axis_word(self, meta, items):
+        return str(items[0])
+
+    def place_axis(self, meta, items):
+        return str(items[0])
+
+    def tilt(self, meta, items):
+        name, last, amount, axis, mode = items
+        return t.PlaceMove("tilt", _ident(name), last, amount, str(axis), mode, pos=_pos(meta))
+
+    def decenter(self, meta, items):
+        name, last, amount, axis, mode = items
+        return t.PlaceMove("decenter", _ident(name), last, amount, str(axis), mode,
+                           pos=_pos(meta))
+
+    def fold(self, meta, items):
+        name, angle, axis, *rest = items
+        return t.Fold(_ident(name), angle, str(axis),
+                      clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta))
+
+    def prism_thickness(self, meta, items):
+        return ("thickness", items[0])
+
+    def prism_incidence(self, meta, items):
+        return ("incidence", items[0])
+
+    def prism_clear(self, meta, items):
+        return ("clear diameter", items[0])
+
+    def prism_wedge(self, meta, items):
+        name, medium, apex, *rest = items
+        options = _options(rest)
+        return t.Prism("wedge", _ident(name), _ident(medium), apex=apex,
+                       thickness=options.get("thickness"), incidence=options.get("incidence"),
+                       clear_diameter=options.get("clear diameter"), pos=_pos(meta))
+
+    def prism_right_angle(self, meta, items):
+        name, medium, size = items
+        return t.Prism("right angle", _ident(name), _ident(medium), size=size, pos=_pos(meta))
+
+    def image_tilt(self, meta, items):
+        angle, axis = items
+        return t.ImageTilt(angle, str(axis), pos=_pos(meta))
+
     # --- image quality (grammar/quality.lark) -----------------------------------------------
     def sensor(self, meta, items):
         width, height, pitch = items
         return t.Sensor(width, height, pitch, pos=_pos(meta))
 
     def wavefront_grid(self, meta, items):
-        return t.WavefrontGrid(items[0], pos=_pos(meta))
+        return t.WavefrontGrid(items[-1], pos=_pos(meta))  # after the word 'wavefront'
 
     def wavelength_weights(self, meta, items):
         return t.WavelengthWeights(tuple(i for i in items if not isinstance(i, Token)),
@@ -350,7 +398,7 @@ class _Builder(Transformer):
                          places=self._places(places), pos=_pos(meta))
 
     def quality_wavefront(self, meta, items):
-        measure, *places = items
+        _, measure, *places = items  # the word 'wavefront', then rms | peak-to-valley
         return t.Quality("wavefront error", str(measure), places=self._places(places),
                          pos=_pos(meta))
 
@@ -612,4 +660,60 @@ def _symbolic_builders() -> None:
 
 
 _symbolic_builders()
+
+
+def _beam_builders() -> None:
+    """The builder methods of grammar/beams.lark (beam, fibre, limits, `at D after`)."""
+
+    def option(kind, with_value=True):
+        def build(self, meta, items):
+            values = [i for i in items if not isinstance(i, Token)]
+            value = values[0] if with_value and values else None
+            at = values[1] if len(values) > 1 else None
+            return t.BeamOption(kind, value, at, pos=_pos(meta))
+        build.__name__ = "beam_" + kind.replace(" ", "_")
+        return build
+
+    table = {
+        "beam_waist_radius": option("waist radius"),
+        "beam_waist_before": option("waist before"),
+        "beam_waist_after": option("waist after"),
+        "beam_wavelength": option("wavelength"),
+        "beam_propagation_ratio": option("propagation ratio"),
+        "fibre_mode_field": option("mode field diameter"),
+        "fibre_at_image": option("at image", with_value=False),
+        "fibre_at_waist": option("at waist", with_value=False),
+        "fibre_after": option("after"),
+        "fibre_offset": option("offset"),
+        "fibre_tilt": option("tilt"),
+    }
+
+    def beam(self, meta, items):
+        return t.Beam(tuple(items), pos=_pos(meta))
+
+    def fibre(self, meta, items):
+        word, *options = items
+        return t.Fibre(tuple(options), str(word), pos=_pos(meta))
+
+    def clipping_limit(self, meta, items):
+        return t.BeamLimit("clipping", items[0], pos=_pos(meta))
+
+    def clearance_limit(self, meta, items):
+        return t.BeamLimit("clearance", items[0], pos=_pos(meta))
+
+    def beam_expect_after(self, meta, items):
+        quantity, distance, op, value, tolerance = items
+        return t.ExpectAfter(quantity, distance, op, value, tolerance, pos=_pos(meta))
+
+    def beam_report_after(self, meta, items):
+        return t.ReportAfter(items[0], items[1], pos=_pos(meta))
+
+    for name, method in table.items():
+        setattr(_Builder, name, v_args(meta=True)(method))
+    for method in (beam, fibre, clipping_limit, clearance_limit, beam_expect_after,
+                   beam_report_after):
+        setattr(_Builder, method.__name__, v_args(meta=True)(method))
+
+
+_beam_builders()
 _BUILDER = _Builder()

@@ -16,9 +16,10 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
-    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "Sensor", "WavefrontGrid", "WavelengthWeights", "QualityPlace", "Quality", "QualityExpect",
     "ExpectCoverage", "QualityReport",
+    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
+    "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
 ]
@@ -524,6 +525,114 @@ class ExpectSensitivity(Statement):
     op: str
     value: Expr
     tolerance: Tolerance | None = None
+
+
+# --- placement (grammar/placement.lark) ------------------------------------------------------
+
+
+@node
+class PlaceMove(Statement):
+    """`tilt NAME [through NAME] by ANGLE about AXIS` or `decenter ... by LENGTH along AXIS`,
+    with an optional `, axis follows | returns` (None: not said, the axis returns)."""
+
+    kind: str  # 'tilt' | 'decenter'
+    first: Ident
+    last: Ident | None
+    amount: Expr
+    axis: str  # 'x' | 'y' | 'z'
+    mode: str | None = None  # 'follows' | 'returns' | None
+
+
+@node
+class Fold(Statement):
+    """`fold [NAME] at ANGLE about AXIS[, clear diameter D]`: a flat mirror the axis follows."""
+
+    name: Ident | None
+    angle: Expr
+    axis: str
+    clear_diameter: Expr | None = None
+
+
+@node
+class Prism(Statement):
+    """`prism NAME in MEDIUM, apex A[, thickness T][, incidence I][, clear diameter D]` or
+    `prism NAME in MEDIUM, right angle, size S`."""
+
+    kind: str  # 'wedge' | 'right angle'
+    name: Ident
+    medium: Ident
+    apex: Expr | None = None
+    thickness: Expr | None = None
+    incidence: Expr | None = None
+    clear_diameter: Expr | None = None
+    size: Expr | None = None
+
+
+@node
+class ImageTilt(Statement):
+    """`tilt image plane by ANGLE about AXIS`."""
+
+    angle: Expr
+    axis: str
+
+
+# --- laser beams and fibres (grammar/beams.lark) ----------------------------------------------
+
+__all__ += ["BeamOption", "Beam", "Fibre", "BeamLimit", "ExpectAfter", "ReportAfter"]
+
+
+@node
+class BeamOption(Node):
+    """One option of `beam` or `fibre`, as written: kind is 'waist radius', 'waist before',
+    'waist after', 'wavelength', 'propagation ratio' (beam) or 'mode field diameter' (with
+    `at` its wavelength), 'at image', 'at waist', 'after', 'offset', 'tilt' (fibre)."""
+
+    kind: str
+    value: Expr | None = None
+    at: Expr | None = None
+
+
+@node
+class Beam(Statement):
+    """`beam waist radius W, waist D before, wavelength L[, propagation ratio M2]`."""
+
+    options: tuple[BeamOption, ...]
+
+
+@node
+class Fibre(Statement):
+    """`fibre mode field diameter D [at L], at image | at waist | D after[, offset X][, tilt A]`
+    (`word` keeps the spelling written: fibre or fiber)."""
+
+    options: tuple[BeamOption, ...]
+    word: str = "fibre"
+
+
+@node
+class BeamLimit(Statement):
+    """`clipping limit P %` or `clearance limit K beam diameters`."""
+
+    kind: str  # 'clipping' | 'clearance'
+    value: Expr
+
+
+@node
+class ExpectAfter(Statement):
+    """`expect QUANTITY at D after < V`: a beam quantity a distance after the last boundary."""
+
+    quantity: Quantity
+    distance: Expr
+    op: str
+    value: Expr
+    tolerance: Tolerance | None = None
+
+
+@node
+class ReportAfter(Statement):
+    """`report QUANTITY at D after`."""
+
+    quantity: Quantity
+    distance: Expr
 
 
 # --- image quality (grammar/quality.lark) --------------------------------------------------

@@ -266,11 +266,20 @@ def _qualifier(q: t.Qualifier) -> str:
     refs = [_wavelength_ref(r) for r in q.wavelengths]
     if q.kind == "of":
         return f"of {q.medium.text}"
-    if q.kind == "at":
-        return f"at wavelength {refs[0]}"
+    if q.kind == "at":  # 'wavelength' is optional: written where the place is a wavelength
+        ref = q.wavelengths[0]
+        if ref.number is not None and ref.number.unit in ("nm", "um", "µm") or _is_line(ref):
+            return f"at wavelength {refs[0]}"
+        return f"at {refs[0]}"
     if q.kind == "between":
         return f"between {refs[0]} and {refs[1]}"
     return f"across {refs[0]}, {refs[1]} and {refs[2]}"
+
+
+def _is_line(ref: t.WavelengthRef) -> bool:
+    from ..materials.lines import SPECTRAL_LINES
+
+    return ref.name is not None and ref.name in SPECTRAL_LINES
 
 
 def _QualifiedExpect(node: t.QualifiedExpect) -> str:
@@ -302,6 +311,54 @@ def _Solve(node: t.Solve) -> str:
     return f"solve {_names(node.unknowns)} so that {conditions}"
 
 
+# placement (grammar/placement.lark)
+def _PlaceMove(node: t.PlaceMove) -> str:
+    through = "" if node.last is None else f" through {node.last.text}"
+    word = "about" if node.kind == "tilt" else "along"
+    text = (f"{node.kind} {node.first.text}{through} by {expression_text(node.amount)} "
+            f"{word} {node.axis}")
+    return text if node.mode is None else f"{text}, axis {node.mode}"
+
+
+def _Fold(node: t.Fold) -> str:
+    name = "" if node.name is None else f" {node.name.text}"
+    text = f"fold{name} at {expression_text(node.angle)} about {node.axis}"
+    if node.clear_diameter is not None:
+        text += f", clear diameter {expression_text(node.clear_diameter)}"
+    return text
+
+
+def _Prism(node: t.Prism) -> str:
+    head = f"prism {node.name.text} in {node.medium.text}"
+    if node.kind == "right angle":
+        return f"{head}, right angle, size {expression_text(node.size)}"
+    text = f"{head}, apex {expression_text(node.apex)}"
+    for word, value in (("thickness", node.thickness), ("incidence", node.incidence),
+                        ("clear diameter", node.clear_diameter)):
+        if value is not None:
+            text += f", {word} {expression_text(value)}"
+    return text
+
+
+# laser beams and fibres (grammar/beams.lark)
+def _beam_option(option: t.BeamOption) -> str:
+    kind = option.kind
+    if kind in ("at image", "at waist"):
+        return kind
+    if kind in ("waist before", "waist after"):
+        return f"waist {expression_text(option.value)} {kind.split()[1]}"
+    if kind == "after":
+        return f"{expression_text(option.value)} after"
+    text = f"{kind} {expression_text(option.value)}"
+    return text if option.at is None else f"{text} at {expression_text(option.at)}"
+
+
+def _BeamLimit(node: t.BeamLimit) -> str:
+    if node.kind == "clipping":
+        return f"clipping limit {expression_text(node.value)}"
+    return f"clearance limit {expression_text(node.value)} beam diameters"
+
+
 _RULES: dict[str, Callable] = {
     "Title": lambda n: f'layout "{n.text}"',
     "Units": lambda n: f"units {n.unit.text}",
@@ -325,6 +382,11 @@ _RULES: dict[str, Callable] = {
     "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
     "ReportRays": lambda n: f"report {n.what}",
     "ExpectRays": _ExpectRays,
+    # placement
+    "PlaceMove": _PlaceMove,
+    "Fold": _Fold,
+    "Prism": _Prism,
+    "ImageTilt": lambda n: f"tilt image plane by {expression_text(n.angle)} about {n.axis}",
     "ReportAtField": lambda n: f"report {n.quantity.text} at field {expression_text(n.field)}"
     + ("" if n.wavelength is None else f" at wavelength {_wavelength_ref(n.wavelength)}"),
     # image quality
@@ -353,6 +415,13 @@ _RULES: dict[str, Callable] = {
     + f" to {_names(n.symbols)}",
     "ExpectSensitivity": lambda n: f"expect sensitivity of {n.quantity.text} to "
     f"{n.symbol.text} {n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    # laser beams and fibres
+    "Beam": lambda n: "beam " + ", ".join(_beam_option(o) for o in n.options),
+    "Fibre": lambda n: f"{n.word} " + ", ".join(_beam_option(o) for o in n.options),
+    "BeamLimit": _BeamLimit,
+    "ExpectAfter": lambda n: f"expect {n.quantity.text} at {expression_text(n.distance)} after "
+    f"{n.op} {expression_text(n.value)}" + _tolerance(n.tolerance),
+    "ReportAfter": lambda n: f"report {n.quantity.text} at {expression_text(n.distance)} after",
     # commands of the interactive session
     "Change": _Change,
     "Insert": lambda n: f"insert {unparse_statement(n.item)} {n.place} {n.anchor.text}",
