@@ -36,6 +36,9 @@ def add_commands(commands) -> None:
     draw.add_argument("--rays", choices=("exact", "paraxial"), default="exact",
                       help="trace the drawn rays exactly (default, where the layout allows) or "
                            "paraxially")
+    draw.add_argument("--what", default="section", choices=("section",) + _PICTURE_NAMES,
+                      help="the picture: the cross-section (default), or image quality: "
+                           + ", ".join(_PICTURE_NAMES))
     report = commands.add_parser("report", help="one document: tables, checks and the drawing")
     report.add_argument("file", help="a layout script (.lay)")
     report.add_argument("--format", choices=REPORT_FORMATS, default=None, dest="doc_format",
@@ -51,6 +54,8 @@ def run_command(args: argparse.Namespace) -> int:
     if args.command == "format":
         return _format(args.files, args.check, args.diff)
     if args.command == "draw":
+        if getattr(args, "what", "section") != "section":
+            return _picture(args.file, args.output, args.what)
         return _draw(args.file, args.output, args.rays == "exact")
     return _report(args.file, args.doc_format, args.output)
 
@@ -95,6 +100,25 @@ def _output_format(output: str, allowed: tuple[str, ...]) -> str:
         raise LayoutError(f"cannot tell the picture format of {output!r}",
                           expected="a file name ending in " + ", ".join("." + a for a in allowed))
     return suffix
+
+
+#: the image-quality pictures of `draw --what` (reports/qualityplots.py, which needs numpy)
+_PICTURE_NAMES = ("spots", "fans", "opd", "wavefront", "psf", "mtf", "field", "focus")
+
+
+def _picture(path: str, output: str, what: str) -> int:
+    from .interpret.interpreter import load_file
+    from .reports.qualityplots import picture_bytes
+
+    kind = _output_format(output, DRAWING_FORMATS)
+    program = load_file(path)
+    data = picture_bytes(program, what, kind)
+    try:
+        Path(output).write_bytes(data)
+    except OSError as error:
+        raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
+    print(f"{output}: written")
+    return EXIT_OK
 
 
 def _draw(path: str, output: str, exact: bool = True) -> int:

@@ -204,3 +204,16 @@ def test_a_sensor_beyond_the_field_is_said_in_words():
     checked = check_program(program)
     assert not checked[0].passed and "beyond the full field" in checked[0].outcome.message
     assert not checked[1].passed
+
+
+def test_draw_what_writes_each_quality_picture_with_the_same_bytes(tmp_path):
+    from layoutlang.cli import main
+
+    script = tmp_path / "camera.lay"
+    script.write_text(DOUBLET + "wavefront grid 16\nsample fields 0, 1\n"
+                                "expect strehl ratio > 0.5\n", encoding="utf-8")
+    for what in ("spots", "fans", "mtf"):
+        first, second = tmp_path / f"{what}1.svg", tmp_path / f"{what}2.svg"
+        assert main(["draw", str(script), "--what", what, "-o", str(first)]) == 0
+        assert main(["draw", str(script), "--what", what, "-o", str(second)]) == 0
+        assert first.read_bytes() == second.read_bytes() and b"<svg" in first.read_bytes()

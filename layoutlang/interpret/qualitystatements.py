@@ -206,21 +206,21 @@ class QualityStatements:
 
     def _quality_converter(self, kind: str):
         if kind == WAVES:
-            return lambda e: self._plain(e, "a wavefront error in waves")
+            return lambda e: self._quality_plain(e, "a wavefront error in waves")
         if kind == DEGREES:
             return lambda e: self.angle(e, "a chief-ray angle")  # radians, shown in degrees
         if kind == NUMBER:
-            return self._fraction
+            return self._quality_fraction
         return lambda e: self.length(e, "the expected value")
 
-    def _plain(self, expr: t.Expr, what: str) -> float:
+    def _quality_plain(self, expr: t.Expr, what: str) -> float:
         measure = self.value(expr)
         if measure.bare or measure.dimension == (0, 0) and not measure.relative:
             return float(measure.value)
         raise LayoutUnitError(f"{what} is a plain number, not {measure.describe()}",
                               self.span(expr), expected="a number such as 0.07")
 
-    def _fraction(self, expr: t.Expr) -> float:
+    def _quality_fraction(self, expr: t.Expr) -> float:
         """A modulation, ratio or energy fraction: a plain number (0.8) or a percentage (80%)."""
         measure = self.value(expr)
         if measure.relative or measure.bare or measure.dimension == (0, 0):
@@ -264,12 +264,12 @@ class QualityStatements:
             name = f"wavefront error {q.measure}"
         frequency = size = term = None
         if q.kind == "mtf":
-            frequency = self._frequency(q)
+            frequency = self._quality_frequency(q)
         elif q.kind in ("encircled energy", "ensquared energy"):
             size = float(self.positive(self.length(q.value, f"the {q.kind} size"), q.value,
                                        f"the {q.kind} size"))
         elif q.kind == "encircled energy radius":
-            size = self._fraction(q.value)
+            size = self._quality_fraction(q.value)
             if not 0 < size < 1:
                 raise LayoutValueError("the energy fraction must lie between 0 and 1 (or 0% "
                                        "and 100%)", self.span(q.value), expected="e.g. 80%")
@@ -287,7 +287,7 @@ class QualityStatements:
                                                              "pixel pitch 3.45 um'")
         return sensor
 
-    def _frequency(self, q: t.Quality) -> float:
+    def _quality_frequency(self, q: t.Quality) -> float:
         if q.frequency == "value":
             unit = q.per.text
             if unit not in LENGTH_UNITS:
