@@ -210,8 +210,8 @@ def test_draw_what_writes_each_quality_picture_with_the_same_bytes(tmp_path):
     from layoutlang.cli import main
 
     script = tmp_path / "camera.lay"
-    script.write_text(DOUBLET + "wavefront grid 16\nsample fields 0, 1\n"
-                                "expect strehl ratio > 0.5\n", encoding="utf-8")
+    script.write_text(DOUBLET + "wavefront grid 16\nexpect strehl ratio > 0.5\n",
+                      encoding="utf-8")
     for what in ("spots", "fans", "mtf"):
         first, second = tmp_path / f"{what}1.svg", tmp_path / f"{what}2.svg"
         assert main(["draw", str(script), "--what", what, "-o", str(first)]) == 0

@@ -94,15 +94,6 @@ class Sampling:
     cutoff_x: float  # 2 NA / λ
     cutoff_y: float
 
-    def describe(self, units: str = "mm") -> str:
-        from ..testing import format_number
-
-        return (f"pupil grid {self.cells} across, FFT {self.size} x {self.size}; point spread "
-                f"sampled every {format_number(self.spacing_x, 4)} x "
-                f"{format_number(self.spacing_y, 4)} {units}; transfer function in steps of "
-                f"{format_number(self.step_y, 4)} up to the cut-off "
-                f"{format_number(self.cutoff_y, 4)} cycles per {units} (tangential)")
-
 
 def fft_size(n: int) -> int:
     from scipy.fft import next_fast_len

@@ -75,6 +75,14 @@ def mtf_frequencies(program: Program, cutoff: float) -> list[tuple[str, float]]:
     return [(f"{format_number(f * cutoff, 4)} /{units}", f * cutoff) for f in (0.1, 0.25, 0.5)]
 
 
+def _sampling_words(s, units: str) -> str:
+    """How the pupil was sampled (engines.psf.Sampling), in words."""
+    return (f"pupil grid {s.cells} across, FFT {s.size} x {s.size}; point spread sampled every "
+            f"{format_number(s.spacing_x, 4)} x {format_number(s.spacing_y, 4)} {units}; "
+            f"transfer function in steps of {format_number(s.step_y, 4)} up to the cut-off "
+            f"{format_number(s.cutoff_y, 4)} cycles per {units} (tangential)")
+
+
 def _term(value: float) -> str:
     """A Zernike coefficient; below 1e-9 waves it is rounding noise of a symmetric layout."""
     return "0" if abs(value) < 1e-9 else format_number(value, 3)
@@ -121,7 +129,7 @@ def _whole(program: Program, results: FirstOrder, engine) -> list[Block]:
     if first is not None:
         from ..engines.psf import sampling
 
-        out.append(Line("sampling: " + sampling(first.pupil_function()).describe(units)))
+        out.append(Line("sampling: " + _sampling_words(sampling(first.pupil_function()), units)))
     weights = engine.weights()
     if len(setups) > 1:
         from .rays import _nm
