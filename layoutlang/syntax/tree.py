@@ -18,7 +18,7 @@ __all__ = [
     "Expect", "Report", "Hazard", "Use", "Script",
     "Sensor", "WavefrontGrid", "WavelengthWeights", "QualityPlace", "Quality", "QualityExpect",
     "ExpectCoverage", "QualityReport",
-    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
+    "ExpectAtInfinity", "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
@@ -204,6 +204,14 @@ class Stop(Statement):
 @node
 class Image(Statement):
     distance: Expr | None = None  # None: at the paraxial focus
+    at_infinity: bool = False  # `image at infinity`: the output is stated to be collimated
+
+
+@node
+class ExpectAtInfinity(Statement):
+    """`expect image at infinity`: the paraxial output is collimated."""
+
+    quantity: Quantity
 
 
 @node
