@@ -41,6 +41,9 @@ def add_commands(commands) -> None:
                       help="PNG only: pixels per inch (default 110; the drawing is 9 in wide)")
     size.add_argument("--width", type=int, metavar="PIXELS",
                       help="PNG only: the picture's width in pixels")
+    draw.add_argument("--what", default="section", choices=("section",) + _PICTURE_NAMES,
+                      help="the picture: the cross-section (default), or image quality: "
+                           + ", ".join(_PICTURE_NAMES))
     report = commands.add_parser("report", help="one document: tables, checks and the drawing")
     report.add_argument("file", help="a layout script (.lay)")
     report.add_argument("--format", choices=REPORT_FORMATS, default=None, dest="doc_format",
@@ -56,6 +59,8 @@ def run_command(args: argparse.Namespace) -> int:
     if args.command == "format":
         return _format(args.files, args.check, args.diff)
     if args.command == "draw":
+        if getattr(args, "what", "section") != "section":
+            return _picture(args.file, args.output, args.what)
         return _draw(args.file, args.output, args.rays == "exact", args.dpi, args.width)
     return _report(args.file, args.doc_format, args.output)
 
@@ -100,6 +105,25 @@ def _output_format(output: str, allowed: tuple[str, ...]) -> str:
         raise LayoutError(f"cannot tell the picture format of {output!r}",
                           expected="a file name ending in " + ", ".join("." + a for a in allowed))
     return suffix
+
+
+#: the image-quality pictures of `draw --what` (reports/qualityplots.py, which needs numpy)
+_PICTURE_NAMES = ("spots", "fans", "opd", "wavefront", "psf", "mtf", "field", "focus")
+
+
+def _picture(path: str, output: str, what: str) -> int:
+    from .interpret.interpreter import load_file
+    from .reports.qualityplots import picture_bytes
+
+    kind = _output_format(output, DRAWING_FORMATS)
+    program = load_file(path)
+    data = picture_bytes(program, what, kind)
+    try:
+        Path(output).write_bytes(data)
+    except OSError as error:
+        raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
+    print(f"{output}: written")
+    return EXIT_OK
 
 
 def _draw(path: str, output: str, exact: bool = True, dpi: float | None = None,
