@@ -8,6 +8,7 @@ from typing import Any
 
 from .engines.firstorder import FirstOrder, Unavailable, first_order
 from .interpret.interpreter import Expectation, Program
+from .engines.qualitysettings import QualityRequest
 from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, DEGREES, PERCENT, POWER, QUANTITIES
 from .quantities import RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
@@ -34,7 +35,7 @@ def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
     return {"length": units, "power": "diopters", PERCENT: "%", ANGLE: "mrad",
-            DECIBEL: "dB", DEGREES: "deg"}.get(kind, "")
+            DECIBEL: "dB", DEGREES: "deg", "waves": "waves"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
@@ -162,6 +163,12 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
         label = beam_label(quantity, request)
     elif request is not None and hasattr(request, "surface"):  # edge thickness of NAME
         value = surface_value(request, program.system, results)
+        label = request.describe()
+    elif isinstance(request, QualityRequest):  # image quality (engines/quality.py)
+        from .engines.quality import image_quality
+
+        value = image_quality(program.system, program.rays, program.quality.settings,
+                              results).value(request)
         label = request.describe()
     elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
         from .engines.chromatic import evaluate

@@ -36,6 +36,14 @@ def add_commands(commands) -> None:
     draw.add_argument("--rays", choices=("exact", "paraxial"), default="exact",
                       help="trace the drawn rays exactly (default, where the layout allows) or "
                            "paraxially")
+    size = draw.add_mutually_exclusive_group()
+    size.add_argument("--dpi", type=float, metavar="N",
+                      help="PNG only: pixels per inch (default 110; the drawing is 9 in wide)")
+    size.add_argument("--width", type=int, metavar="PIXELS",
+                      help="PNG only: the picture's width in pixels")
+    draw.add_argument("--what", default="section", choices=("section",) + _PICTURE_NAMES,
+                      help="the picture: the cross-section (default), or image quality: "
+                           + ", ".join(_PICTURE_NAMES))
     report = commands.add_parser("report", help="one document: tables, checks and the drawing")
     report.add_argument("file", help="a layout script (.lay)")
     report.add_argument("--format", choices=REPORT_FORMATS, default=None, dest="doc_format",
@@ -51,7 +59,9 @@ def run_command(args: argparse.Namespace) -> int:
     if args.command == "format":
         return _format(args.files, args.check, args.diff)
     if args.command == "draw":
-        return _draw(args.file, args.output, args.rays == "exact")
+        if getattr(args, "what", "section") != "section":
+            return _picture(args.file, args.output, args.what)
+        return _draw(args.file, args.output, args.rays == "exact", args.dpi, args.width)
     return _report(args.file, args.doc_format, args.output)
 
 
@@ -97,15 +107,46 @@ def _output_format(output: str, allowed: tuple[str, ...]) -> str:
     return suffix
 
 
-def _draw(path: str, output: str, exact: bool = True) -> int:
+#: the image-quality pictures of `draw --what` (reports/qualityplots.py, which needs numpy)
+_PICTURE_NAMES = ("spots", "fans", "opd", "wavefront", "psf", "mtf", "field", "focus")
+
+
+def _picture(path: str, output: str, what: str) -> int:
     from .interpret.interpreter import load_file
-    from .reports.drawing import save_drawing
+    from .reports.qualityplots import picture_bytes
 
     kind = _output_format(output, DRAWING_FORMATS)
     program = load_file(path)
+    data = picture_bytes(program, what, kind)
+    try:
+        Path(output).write_bytes(data)
+    except OSError as error:
+        raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
+    print(f"{output}: written")
+    return EXIT_OK
+
+
+def _draw(path: str, output: str, exact: bool = True, dpi: float | None = None,
+          width: int | None = None) -> int:
+    from .interpret.interpreter import load_file
+    from .reports.drawing import FIGURE_WIDTH, save_drawing
+
+    kind = _output_format(output, DRAWING_FORMATS)
+    if (dpi is not None or width is not None) and kind != "png":
+        raise LayoutError(f"--{'dpi' if dpi is not None else 'width'} sets a PNG's size; "
+                          f"{output!r} is {kind.upper()}, which scales without it",
+                          expected="an output file ending in .png, or no --dpi/--width")
+    if width is not None:
+        if not 100 <= width <= 20000:
+            raise LayoutError(f"--width {width} is not a picture width",
+                              expected="a width from 100 to 20000 pixels")
+        dpi = width / FIGURE_WIDTH
+    if dpi is not None and not 10 <= dpi <= 2000:
+        raise LayoutError(f"--dpi {dpi:g} is out of range", expected="from 10 to 2000")
+    program = load_file(path)
     try:
         save_drawing(program.system, output, kind, tuple(getattr(program, "hazards", ())),
-                     exact)
+                     exact, dpi)
     except OSError as error:
         raise LayoutError(f"cannot write {output}: {error.strerror or error}") from None
     print(f"{output}: written")

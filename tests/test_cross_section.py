@@ -153,13 +153,13 @@ def test_exact_rays_fall_back_to_paraxial_with_a_note() -> None:
     section = cross_section(loads("""medium glass index 1.5
 object 35 before, height 2
 start in air
-surface flat into glass
+surface flat into glass, clear diameter 20
 gap 8
 surface radius -24.6 into air
 image at focus
 """).system, exact=True)
-    assert all(r.label == "" for r in section.rays)
-    assert any("paraxial rays drawn: exact rays need a stop" in n for n in section.notes)
+    assert section.rays and all(r.label == "" for r in section.rays)
+    assert any("paraxial rays are drawn (exact rays need a stop)" in n for n in section.notes)
 
 
 def test_degenerate_layouts_give_a_clear_error_not_inf_or_nan() -> None:
@@ -228,3 +228,95 @@ def test_exact_rays_also_show_where_a_virtual_image_seems_to_be() -> None:
     crossing = _axis_crossing(marginal[0].virtual_z, marginal[0].virtual_y)
     assert crossing != pytest.approx(image_z, abs=1e-6)
     assert abs(crossing - image_z) < 0.05 * abs(image_z)
+
+
+# --- apertures from the geometry, far images, bundles, the stop ------------------------------
+
+
+def test_a_ball_lens_is_drawn_as_a_ball() -> None:
+    section = cross_section(loads("""medium ball_glass index 1.746
+object at infinity
+start in air
+surface entry radius 1 into ball_glass
+gap 2
+surface exit radius -1 into air
+stop at entry, diameter 0.3
+image at focus
+""").system, exact=True)
+    assert [round(p.semi_aperture, 3) for p in section.profiles] == [0.999, 0.999]
+    assert not section.notes  # nothing to apologise for
+
+
+def test_an_ordinary_lens_keeps_the_apertures_of_its_bundles() -> None:
+    section = _section("""medium glass index 1.5
+object at infinity, field angle 2 deg
+start in air
+surface front radius 200 into glass
+gap 2
+surface back radius -200 into air
+stop at front, diameter 10
+image at focus
+""")
+    assert all(p.semi_aperture < 8 for p in section.profiles)  # not out to the far knife edge
+
+
+def test_a_near_collimated_output_does_not_stretch_the_drawing() -> None:
+    # the object sits 0.01 mm inside the focal length of a 50 mm thin lens: the image plane
+    # is ~250 m away (1/s + 1/s' = 1/f, Hecht 2017, eq. 5.17, from memory)
+    section = _section("""object 49.99 before, height 1
+start in air
+lens thin focal length 50
+stop at thin, diameter 10
+image at focus
+""")
+    z_min, z_max, _ = section.extent()
+    assert z_max - z_min < 500
+    assert section.image is None
+    assert any("image is far away" in n and "cut short" in n for n in section.notes)
+
+
+def test_bundles_at_three_fields_a_few_rays_each() -> None:
+    section = _section("""object 100 before, height 2
+start in air
+lens thin focal length 50
+stop at thin, diameter 10
+image at focus
+""")
+    assert section.fields == (0.0, 0.7, 1.0)
+    for field in section.fields:
+        pupils = sorted(r.pupil for r in section.rays if r.field == field)
+        assert pupils == ([-1, -0.5, 0.5, 1] if field == 0 else [-1, -0.5, 0, 0.5, 1])
+
+
+def test_exact_rays_pass_through_the_drawn_stop_wherever_it_is() -> None:
+    pytest.importorskip("layoutlang.engines.realrays")
+    section = cross_section(loads("""medium glass index 1.6
+object at infinity, field angle 5 deg
+start in air
+surface front radius 40 into glass
+gap 5
+surface back radius -120 into air
+stop 12 after back, diameter 6
+image at focus
+""").system, exact=True)
+    z, radius = section.stop
+    for ray in section.rays:
+        assert ray.label == "exact"
+        at = [y for zz, y in zip(ray.z, ray.y) if abs(zz - z) < 1e-9]
+        assert at, "every ray has a point on the stop plane"
+        if ray.field == 0 and abs(ray.pupil) == 1:
+            assert abs(at[0]) == pytest.approx(radius, rel=1e-6)
+        if ray.pupil == 0:
+            assert at[0] == pytest.approx(0, abs=1e-6 * radius)
+
+
+def test_each_note_once_and_in_sentences() -> None:
+    section = _section("""object 100 before, height 2
+start in air
+lens thin focal length 50
+image at focus
+""")
+    assert len(section.notes) == len(set(section.notes))
+    assert section.notes == ["no rays are drawn: the layout has no stop and the first boundary "
+                             "no clear diameter"]
+    assert section.rays == []

@@ -139,3 +139,61 @@ def test_change_a_symbols_nominal_value() -> None:
     text, said = edit("change d to 3", script)
     assert text == "symbols R d positive\nnominal R = 20, d = 3\n"
     assert said == "d is now nominally 3"
+
+
+# --- placements (grammar/placement.lark) -----------------------------------------------------
+
+def _placed_session():
+    from layoutlang.syntax.parser import parse
+
+    text = ("object at infinity\nstart in air\nlens l focal length 50\ngap 10\n"
+            "fold turn at 45 deg about x\ngap 20\nsurface cover flat\n"
+            "tilt l by 0.1 deg about x\n")
+    return parse(text, "t.lay").statements
+
+
+def _command(line: str):
+    from layoutlang.syntax.parser import parse
+
+    return parse(line + "\n", "<input>").statements[0]
+
+
+def test_change_knows_a_surfaces_tilt_and_decenter() -> None:
+    from layoutlang.repl.edits import apply_edit
+    from layoutlang.syntax.unparse import unparse
+
+    statements = _placed_session()
+    changed, message = apply_edit(statements, _command("change l tilt about x to 0.3 deg"), "")
+    assert "tilt l by 0.3 deg about x" in unparse(changed) and "tilted" in message
+    added, _ = apply_edit(changed, _command("change cover decenter along y to 0.02"), "")
+    assert "decenter cover by 0.02 along y" in unparse(added)
+
+
+def test_remove_takes_a_surfaces_placements_along() -> None:
+    from layoutlang import loads
+    from layoutlang.repl.edits import apply_edit
+    from layoutlang.syntax.unparse import unparse
+
+    statements = _placed_session()
+    removed, message = apply_edit(statements, _command("remove l"), "")
+    assert "tilt l" not in unparse(removed) and "went with it" in message
+    removed_fold, _ = apply_edit(statements, _command("remove turn"), "")
+    assert "fold" not in unparse(removed_fold)
+    loads(unparse(removed_fold))  # still a layout
+
+
+def test_remove_refuses_a_surface_that_ends_a_placed_element() -> None:
+    from layoutlang.errors import LayoutError
+    from layoutlang.repl.edits import apply_edit
+
+    statements = _placed_session() + (_command("tilt l through cover by 1 deg about y"),)
+    with pytest.raises(LayoutError, match="placed as one body"):
+        apply_edit(statements, _command("remove cover"), "")
+
+
+def test_rename_follows_into_placements() -> None:
+    from layoutlang.repl.edits import apply_edit
+    from layoutlang.syntax.unparse import unparse
+
+    renamed, _ = apply_edit(_placed_session(), _command("rename l to objective"), "")
+    assert "tilt objective by 0.1 deg about x" in unparse(renamed)

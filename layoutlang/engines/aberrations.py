@@ -30,7 +30,7 @@ from .realrays import OK, STATUS_WORDS, Geometry, Rays
 
 __all__ = [
     "MarginalRow", "ChiefRow", "SpotRow", "RayAnalysis", "RaySetup",
-    "analyse", "setup", "aim", "launch", "spot", "marginal", "chief", "best_focus_shift",
+    "analyse", "setup", "aim", "aimed", "launch", "spot", "marginal", "chief", "best_focus_shift",
     "DEFAULT_WAVELENGTH_NM", "wavelength_sets",
 ]
 
@@ -156,6 +156,13 @@ def aim(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, iterations: i
         ex = np.where(good, ex - np.where(good, step_x, 0), ex)
         ey = np.where(good, ey - np.where(good, step_y, 0), ey)
     return ex, ey
+
+
+def aimed(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray) -> Rays:
+    """Rays from the object point at `field`, aimed to pass the real stop at (px, py)·stop
+    radius, not yet traced (drawings trace them step by step)."""
+    ex, ey = aim(s, field, px, py)
+    return _object_rays(s, field, ex, ey)
 
 
 def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray) -> Rays:

@@ -25,6 +25,7 @@ from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
+from .qualitystatements import QualityStatements
 from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
 from .placestatements import PlaceStatements
@@ -77,6 +78,7 @@ class Program:
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
     tolerances: Any = None  # tolerance.model.ToleranceSetup, or None without tolerances
+    quality: Any = None  # qualitystatements.QualityPlan: image-quality sampling and reports
     beams: Any = None  # a beam script's BeamSettings (interpret/beamstatements.py), else None
     # no display methods here: the notebook front end registers how a Program shows
     # (layoutlang.notebook.register), so interpreting never pulls in a renderer
@@ -104,7 +106,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements, PlaceStatements, SurfaceOptions,
+                   BuildStatements, PlaceStatements, SurfaceOptions, QualityStatements,
                    ToleranceStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
@@ -625,6 +627,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             self.file, self.lines = self.stop_context
             system = replace(system, stop=self.build_stop(self.stop_node, system))
         rays = self.ray_settings(system)
+        quality = self.quality_plan(system)
         expectations = []
         for node, (self.file, self.lines) in self.expect_nodes:
             expectations.append(self.expectation(node))
@@ -632,13 +635,14 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
         tolerances = self.tolerance_setup(system)  # tolerancestatements.py
+        self.refuse_unused_quality_settings(expectations)  # qualitystatements.py
         program = self.check_buildable(self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports),
             self.beam_hazards(self.hazards), dict(self.names), rays=rays,
             ray_reports=self.ray_reports(), ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
             beams=self.beam_settings(system), surface_requests=self.surface_reports(system),
-            tolerances=tolerances)))
+            quality=quality, tolerances=tolerances)))
         self.check_image_at_infinity(program)
         return program
 
@@ -686,6 +690,8 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
     def expectation(self, node: t.Expect) -> Expectation:
         if isinstance(node, t.ExpectYield):  # tolerancestatements.py
             return self.yield_expectation(node)
+        if isinstance(node, (t.QualityExpect, t.ExpectCoverage)):  # qualitystatements.py
+            return self.quality_expectation(node)
         if isinstance(node, t.ExpectAtInfinity):
             span = self.span(node)
             return Expectation("image distance", LENGTH, "at infinity", 0.0, None, False, span,
@@ -757,7 +763,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements, PlaceStatements, SurfaceOptions, ToleranceStatements,
+                BuildStatements, PlaceStatements, SurfaceOptions, QualityStatements, ToleranceStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

@@ -114,6 +114,8 @@ class RayStatements:
         for what, (node, (self.file, self.lines)) in written.items():
             if what == "grid" and uses_grid:
                 continue
+            if what == "fields" and self.quality_reads_fields():  # `report quality`
+                continue
             words = "'focus tolerance'" if what == "tolerance" else f"'sample {what}'"
             needs = ("'report exact rays', or a spot radius or best focus shift to expect or "
                      "report" if what == "grid" else "'report exact rays'")

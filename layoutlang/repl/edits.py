@@ -28,7 +28,7 @@ def _span(node: t.Node, text: str) -> Span:
 def boundary_names(statements: Statements) -> list[str]:
     """The names of the named surfaces, mirrors and lenses, in order."""
     return [s.name.text for s in statements
-            if isinstance(s, t.BoundaryStatement) and s.name is not None]
+            if isinstance(s, (t.BoundaryStatement, t.Fold)) and s.name is not None]
 
 
 def scope_names(statements: Statements) -> list[str]:
@@ -53,7 +53,7 @@ def medium_names(statements: Statements) -> list[str]:
 
 def _boundary_index(statements: Statements, ident: t.Ident, text: str) -> int:
     for i, statement in enumerate(statements):
-        if (isinstance(statement, t.BoundaryStatement) and statement.name is not None
+        if (isinstance(statement, (t.BoundaryStatement, t.Fold)) and statement.name is not None
                 and statement.name.text == ident.text):
             return i
     names = boundary_names(statements)
@@ -68,7 +68,7 @@ def _neighbour_gap(statements: Statements, i: int, place: str) -> int | None:
     """The index of the gap statement between boundary i and its neighbour on `place` side."""
     step = 1 if place == "after" else -1
     j = i + step
-    while 0 <= j < len(statements) and not isinstance(statements[j], t.BoundaryStatement):
+    while 0 <= j < len(statements) and not isinstance(statements[j], (t.BoundaryStatement, t.Fold, t.Prism)):
         if isinstance(statements[j], t.Gap):
             return j
         j += step
@@ -77,7 +77,7 @@ def _neighbour_gap(statements: Statements, i: int, place: str) -> int | None:
 
 def _has_neighbour(statements: Statements, i: int, place: str) -> bool:
     others = range(i + 1, len(statements)) if place == "after" else range(i)
-    return any(isinstance(statements[j], t.BoundaryStatement) for j in others)
+    return any(isinstance(statements[j], (t.BoundaryStatement, t.Fold, t.Prism)) for j in others)
 
 
 def _with(statements: Statements, i: int, new: t.Statement | None) -> Statements:
@@ -115,8 +115,18 @@ def _change(statements: Statements, node: t.Change, text: str) -> tuple[Statemen
                               expected="a name defined with 'let' (or a symbol's nominal value)",
                               hint="to change a surface, name the property: "
                                    f"'change {name} radius to ...'")
+    if node.prop.startswith(("tilt about", "decenter along")):
+        return _change_placement(statements, node, text)
     i = _boundary_index(statements, node.name, text)
     boundary: t.BoundaryStatement = statements[i]
+    if isinstance(boundary, t.Fold):
+        if node.prop == "clear diameter":
+            new = replace(boundary, clear_diameter=node.value)
+            return _with(statements, i, new), \
+                f"{name} now has clear diameter {_expr(node.value)}"
+        raise LayoutValueError(f"{name} is a fold mirror: change its clear diameter, or its "
+                               "placement with 'change NAME tilt about x to ...'",
+                               _span(node, text))
     prop = node.prop
     if prop in ("radius", "curvature", "flat"):
         if boundary.kind == "lens":
@@ -154,6 +164,44 @@ def _change(statements: Statements, node: t.Change, text: str) -> tuple[Statemen
         new = replace(boundary, into=t.Ident(node.value.id))
         return _with(statements, i, new), f"after {name} the light is now in {node.value.id}"
     raise LayoutValueError(f"a {boundary.kind} has no property {prop!r}", _span(node, text))
+
+
+def _change_placement(statements: Statements, node: t.Change, text: str
+                      ) -> tuple[Statements, str]:
+    """`change front tilt about x to 0.2 deg` / `change front decenter along y to 0.05`: the
+    one-surface `tilt`/`decenter` statement about that axis, or a new one after the surface."""
+    kind, _, axis = node.prop.split()
+    name = node.name.text
+    word = "about" if kind == "tilt" else "along"
+    done = "tilted" if kind == "tilt" else "decentred"
+    for i, statement in enumerate(statements):
+        if (isinstance(statement, t.PlaceMove) and statement.first.text == name
+                and statement.last is None and statement.kind == kind and statement.axis == axis):
+            return _with(statements, i, replace(statement, amount=node.value)), \
+                f"{name} is now {done} by {_expr(node.value)} {word} {axis}"
+    i = _boundary_index(statements, node.name, text)
+    move = t.PlaceMove(kind, t.Ident(name), None, node.value, axis)
+    return statements[:i + 1] + (move,) + statements[i + 1:], \
+        f"{name} is now {done} by {_expr(node.value)} {word} {axis}"
+
+
+def _placements_of(statements: Statements, name: str, text: str, node: t.Node) -> set[int]:
+    """The `tilt`/`decenter` statements of one surface (removed with it); a group that starts
+    or ends at it must be changed first."""
+    found = set()
+    for k, statement in enumerate(statements):
+        if not isinstance(statement, t.PlaceMove):
+            continue
+        ends = {statement.first.text} | ({statement.last.text} if statement.last else set())
+        if name not in ends:
+            continue
+        if statement.last is not None:
+            raise LayoutValueError(
+                f"{name} ends an element that is placed as one body "
+                f"('{statement.kind} {statement.first.text} through {statement.last.text}')",
+                _span(node, text), hint="remove or change that placement first")
+        found.add(k)
+    return found
 
 
 def _change_medium(statements: Statements, node: t.Change, text: str) -> tuple[Statements, str]:
@@ -249,6 +297,11 @@ def _remove(statements: Statements, node: t.Remove, text: str) -> tuple[Statemen
         if j is None:
             raise LayoutValueError(f"there is no gap {node.gap} {name}", _span(node, text))
         return _with(statements, j, None), f"removed the gap {node.gap} {name}"
+    placements = _placements_of(statements, name, text, node)
+    if placements:
+        kept = tuple(s for k, s in enumerate(statements) if k not in placements)
+        new, message = _remove(kept, node, text)
+        return new, message + "; its tilt and decenter statements went with it"
     before = _neighbour_gap(statements, i, "before")
     after = _neighbour_gap(statements, i, "after")
     new = _with(statements, i, None)

@@ -3,8 +3,11 @@
 Pure geometry (no plotting), so it can be tested without matplotlib. Positions are global: z
 along the axis (light starts in +z), y up. Each vertex sits where the gaps, walked along the
 current sense of travel, put it, so a mirror folds the path back on itself exactly as the light
-goes. Rays are the paraxial marginal ray (axial object point to the edge of the stop) and chief
-ray (edge of the field through the centre of the stop), drawn ending on the surface profiles.
+goes. Rays come in bundles at several fields (the axis, an intermediate field, the full field),
+a few rays each across the pupil, exactly traced and aimed at the real stop where the layout
+allows, paraxial otherwise; they end on the surface profiles. Apertures without a clear
+diameter come from the geometry: an element is drawn out to where its faces meet (a ball lens
+is a ball), else to the ray bundles with a margin.
 """
 
 from __future__ import annotations
@@ -18,14 +21,25 @@ from ..engines import paraxial
 from ..engines.firstorder import FirstOrder, Unavailable, first_order
 from ..engines.paraxial import TRANSFER, Step
 from ..errors import LayoutError, LayoutValueError
-from ..system import IDEAL, MIRROR, System
+from ..system import IDEAL, MIRROR, REFRACT, System
 
 __all__ = ["Profile", "Element", "RayPath", "BeamEnvelope", "CrossSection", "cross_section",
-           "sag", "beam_envelope"]
+           "sag", "beam_envelope", "FIELDS", "PUPILS", "FAR_IMAGE"]
 
 #: Extra room beyond the ray bundle when no clear diameter is given (the glass is never cut
 #: exactly at the ray): common practice in drawings, the value is ours.
 APERTURE_MARGIN = 1.1
+#: The field fractions whose bundles are drawn (axis, intermediate, full) and the pupil
+#: fractions of each bundle's rays: common practice in layout drawings, the numbers are ours.
+FIELDS = (0.0, 0.7, 1.0)
+PUPILS = (-1.0, -0.5, 0.0, 0.5, 1.0)
+#: An image plane farther than this many times the layout's size is not drawn: the rays are
+#: cut short (a near-collimated output must not stretch the drawing to its far focus).
+FAR_IMAGE = 25.0
+#: Edge thickness below this fraction of the centre thickness counts as faces that meet.
+_MEETING = 0.1
+#: A lens whose faces meet within this factor of its ray bundles is drawn to its edge.
+_CLOSE_TO_BUNDLES = 1.6
 
 
 def sag(curvature: float, height: np.ndarray) -> np.ndarray:
@@ -50,7 +64,7 @@ class Profile:
     from_clear_diameter: bool
     power: float = 0.0
 
-    def points(self, samples: int = 41) -> tuple[np.ndarray, np.ndarray]:
+    def points(self, samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
         """(z, y) along the profile from -semi_aperture to +semi_aperture."""
         y = np.linspace(-self.semi_aperture, self.semi_aperture, samples)
         return self.z + sag(self.curvature, y), y
@@ -70,7 +84,7 @@ class Element:
     medium: str
     edge: float  # the semi-height of its rim
 
-    def outline(self, profiles: list[Profile], samples: int = 41) -> tuple[np.ndarray, np.ndarray]:
+    def outline(self, profiles: list[Profile], samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
         """A closed outline: down the first face, up the second, with flat rims where one
         face is smaller than the rim."""
         y = np.linspace(-self.edge, self.edge, samples)
@@ -82,7 +96,12 @@ class Element:
 
 @dataclass(frozen=True)
 class RayPath:
-    """One drawn ray: its role (marginal or chief), wavelength label and (z, y) points."""
+    """One drawn ray: its role, how it was traced ('exact' or ''), and its (z, y) points.
+
+    The role is 'marginal' (axial bundle, pupil edge), 'chief' (full field, pupil centre) or
+    'bundle' (any other ray of a bundle); `field` and `pupil` are the fractions it was
+    launched at.
+    """
 
     role: str
     label: str
@@ -91,6 +110,22 @@ class RayPath:
     #: for a virtual image: the backward extension from the last boundary to the image
     virtual_z: tuple[float, ...] = ()
     virtual_y: tuple[float, ...] = ()
+    field: float = 0.0
+    pupil: float = 0.0
+
+
+def _role(field: float, pupil: float) -> str:
+    if field == 0 and abs(pupil) == 1:
+        return "marginal"
+    if field == 1 and pupil == 0:
+        return "chief"
+    return "bundle"
+
+
+def _bundles(has_field: bool) -> list[tuple[float, float]]:
+    """(field, pupil) of every drawn ray; the ray along the axis itself is left out."""
+    fields = FIELDS if has_field else (0.0,)
+    return [(f, p) for f in fields for p in PUPILS if f or p]
 
 
 @dataclass(frozen=True)
@@ -116,6 +151,8 @@ class CrossSection:
     image: tuple[float, float] | None  # (z, semi-height of the drawn image plane)
     object_plane: tuple[float, float] | None  # (z, height) when the object is drawn
     notes: list[str] = field(default_factory=list)
+    #: the field fractions of the drawn bundles (the legend names them)
+    fields: tuple[float, ...] = ()
     beam: BeamEnvelope | None = None  # a layout with a Gaussian beam
 
     def extent(self) -> tuple[float, float, float]:
@@ -179,9 +216,12 @@ def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | No
     if system.stop is None and system.beam is not None:  # the beam is drawn instead
         return None, None, notes
     if system.stop is None:
-        notes.append("no stop given: the rays are drawn through the edge of the first boundary")
         first = system.boundaries[0]
         radius = float(first.clear_diameter) / 2 if first.clear_diameter is not None else None
+        notes.append("no stop is given: the rays fill the clear diameter of the first boundary"
+                     if radius is not None else
+                     "no rays are drawn: the layout has no stop and the first boundary no clear "
+                     "diameter")
         front: list[Step] = []
     else:
         stop_diameter = results["stop diameter"]
@@ -189,7 +229,7 @@ def _rays(system: System, results: FirstOrder) -> tuple[tuple[float, float] | No
         front = paraxial.split_at_stop(system).front
     if radius is None:
         if system.stop is not None:
-            notes.append(f"marginal ray not drawn: {results['stop diameter']}")
+            notes.append(f"no rays are drawn: the stop diameter is {results['stop diameter']}")
         return None, None, notes
     a1, b1, _, _ = paraxial.matrix(front) if front else (1.0, 0.0, 0.0, 1.0)
     marginal = chief = None
@@ -285,30 +325,38 @@ def _cross_section(system: System, results: FirstOrder | None = None,
     senses = system.directions()
     n0 = system.indices()[0]
     marginal, chief, notes = _rays(system, results)
-    starts = [("marginal", marginal), ("marginal", _flip(marginal)), ("chief", chief)]
-    starts = [(role, start) for role, start in starts if start is not None]
-    heights = {id(start): _heights(system, *start) for _, start in starts}
+    starts = []  # (field, pupil, (y, nu) at the first vertex): paraxial rays are linear in both
+    if marginal is not None:
+        for f, p in _bundles(chief is not None):
+            start = (p * marginal[0] + (f * chief[0] if f else 0.0),
+                     p * marginal[1] + (f * chief[1] if f else 0.0))
+            starts.append((f, p, start))
+    heights = [_heights(system, *start) for _, _, start in starts]
 
-    # apertures: the clear diameter, else the ray bundle at that boundary plus a margin
+    # apertures: the clear diameter; else the element's own geometry, else the bundles
     profiles: list[Profile] = []
+    span = max(abs(max(vertices) - min(vertices)), 1e-9)
     plane = results["image plane distance"]
-    length_scale = max(abs(max(vertices) - min(vertices)),
-                       0 if isinstance(plane, Unavailable) else abs(float(plane)), 1e-9)
+    reach = max([span] + [abs(float(v)) for v in (plane, system.object.distance)
+                          if v is not None and not isinstance(v, Unavailable)])
     for i, boundary in enumerate(system.boundaries):
+        curvature = float(boundary.curvature)
         if boundary.clear_diameter is not None:
             semi, given = float(boundary.clear_diameter) / 2, True
+            if curvature and semi * abs(curvature) >= 1:  # beyond a hemisphere
+                semi = 0.999 / abs(curvature)
+                notes.append(f"{boundary.name}: its clear diameter is larger than its sphere; "
+                             "drawn to a hemisphere")
         else:
-            m = abs(_heights_at(heights, marginal, i))
-            c = abs(_heights_at(heights, chief, i))
-            semi, given = (m + c) * APERTURE_MARGIN, False
-            if semi == 0:
-                semi = 0.1 * length_scale
-        curvature = float(boundary.curvature)
-        if curvature and semi * abs(curvature) >= 1:  # beyond a hemisphere: draw the hemisphere
-            semi = 0.999 / abs(curvature)
-            notes.append(f"{boundary.name}: drawn to a hemisphere (the aperture exceeds it)")
+            given = False
+            semi = max((abs(h[i]) for h in heights), default=0.0) * APERTURE_MARGIN
+            if semi == 0:  # no rays: a size the shape can have
+                semi = 0.1 * reach if not curvature else min(0.1 * reach, 0.6 / abs(curvature))
+            if curvature and semi * abs(curvature) >= 1:
+                semi = 0.999 / abs(curvature)
         profiles.append(Profile(boundary.name, boundary.kind, vertices[i], curvature, semi,
                                 senses[i], given, float(boundary.power or 0)))
+    profiles = _meeting_faces(system, profiles)
 
     # elements: material other than the starting medium between two refracting boundaries
     elements = []
@@ -323,6 +371,9 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         elements.append(Element(i, i + 1, boundary.medium_after, edge))
 
     # where the drawing begins and ends along the path
+    size = max(span, max(p.semi_aperture for p in profiles))
+    far = not isinstance(plane, Unavailable) and abs(float(plane)) > FAR_IMAGE * size
+    length_scale = span if isinstance(plane, Unavailable) or far else max(span, abs(float(plane)))
     z_first, z_last = vertices[0], vertices[-1]
     lead = 0.3 * length_scale if length_scale > 1e-6 else 10 * max(
         p.semi_aperture for p in profiles)
@@ -339,24 +390,30 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         else:
             before = lead + upstream
             if distance <= 0:
-                notes.append("the object is virtual (after the first boundary): not drawn")
+                notes.append("the object is virtual (after the first boundary) and is not drawn")
             else:
                 notes.append("the object is far away: the rays are cut short before the layout")
-    image = None
     sense_k = senses[-1]
     if isinstance(plane, Unavailable):
         after = lead
-        notes.append(f"image plane not drawn: {plane}")
+        notes.append(f"the image plane is not drawn: {plane}")
+    elif far:
+        from ..testing import format_number
+
+        side = "after" if float(plane) > 0 else "before"
+        notes.append(f"the image is far away ({format_number(abs(float(plane)))} "
+                     f"{system.units} {side} the last boundary): the rays are cut short")
+        after = max(lead, 2 * size)
     else:
         after = float(plane)
     nk = system.indices()[-1]
 
     rays = []
-    for role, start in starts:
+    for (f, p, start), path in zip(starts, heights):
         y0, nu0 = start
         zs = [z_first - before]
         ys = [y0 - nu0 / n0 * before]
-        for i, y in enumerate(heights[id(start)]):
+        for i, y in enumerate(path):
             zs.append(profiles[i].z_at(y))  # beyond the aperture: at the plane of the rim
             ys.append(y)
         y_end, nu_end = _exit(system, y0, nu0)
@@ -370,16 +427,18 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         else:
             zs.append(z_last + sense_k * after)
             ys.append(y_end + nu_end / nk * after)
-        rays.append(RayPath(role, "", tuple(zs), tuple(ys), virtual_z, virtual_y))
-    if not isinstance(plane, Unavailable):
+        rays.append(RayPath(_role(f, p), "", tuple(zs), tuple(ys), virtual_z, virtual_y, f, p))
+    image = None
+    if not isinstance(plane, Unavailable) and not far:
         tips = [abs(r.virtual_y[-1] if r.virtual_y else r.y[-1]) for r in rays]
         height = max(tips + [0.15 * max(p.semi_aperture for p in profiles)])
         image = (z_last + sense_k * after, 1.15 * height)
-    if exact and (starts or system.beam is None):  # a beam without a stop: no rays
+    if exact and starts:
         traced = _exact_rays(system, results, z_first - before,
-                             z_last + sense_k * (after if after >= 0 else lead))
+                             z_last + sense_k * (after if after >= 0 else lead),
+                             chief is not None, virtual=not far)
         if isinstance(traced, str):
-            notes.append(f"paraxial rays drawn: exact rays {traced}")
+            notes.append(f"paraxial rays are drawn (exact rays {traced})")
         else:
             rays, lost = traced
             notes.extend(lost)
@@ -390,11 +449,14 @@ def _cross_section(system: System, results: FirstOrder | None = None,
         if system.stop.after >= 0 and system.stop.offset == 0:  # at a boundary: at its rim
             stop_z = profiles[system.stop.after].z_at(radius)
         stop = (stop_z, radius)
+    fields = tuple(sorted({r.field for r in rays}))
     beam = None
     if system.beam is not None:
-        beam = beam_envelope(system, length_scale, lead, notes)
+        # the beam has its own reach (its waists), whatever the rays' image plane does
+        beam_scale = span if isinstance(plane, Unavailable) else max(span, abs(float(plane)))
+        beam = beam_envelope(system, beam_scale, lead, notes)
     return CrossSection(system.title, system.units, profiles, elements, rays, stop, image,
-                        object_plane, notes, beam)
+                        object_plane, list(dict.fromkeys(notes)), fields, beam)
 
 
 def _micro(value: float, units: str) -> str:
@@ -468,86 +530,116 @@ def beam_envelope(system: System, length_scale: float, lead: float,
                         tuple(p.radius for p in points), tuple(waists))
 
 
-def _flip(start):
-    return None if start is None else (-start[0], -start[1])
+def _meeting_faces(system: System, profiles: list[Profile]) -> list[Profile]:
+    """Profiles with each element that has no clear diameter drawn out to where its two faces
+    meet (zero edge thickness) or to the hemisphere that comes first: the largest lens the
+    prescription describes, so a ball lens is drawn as a ball. An element whose faces do not
+    meet (a plate, a meniscus, a negative lens) keeps the apertures of the ray bundles."""
+    out = list(profiles)
+    ambient = {system.start_medium, "air", "vacuum"}
+    for i in range(len(profiles) - 1):
+        a, b = profiles[i], profiles[i + 1]
+        boundary = system.boundaries[i]
+        if (a.from_clear_diameter or b.from_clear_diameter or boundary.medium_after in ambient
+                or a.kind != REFRACT or b.kind != REFRACT or b.z <= a.z):
+            continue
+        limits = [0.999 / abs(c) for c in (a.curvature, b.curvature) if c]
+        if not limits:
+            continue
+        top = min(limits)
+
+        def thickness(h: float) -> float:
+            return (b.z + float(sag(b.curvature, np.array(h)))) - \
+                (a.z + float(sag(a.curvature, np.array(h))))
+
+        centre = thickness(0.0)
+        if thickness(top) > _MEETING * centre:
+            continue  # the faces do not meet within the spheres
+        if thickness(top) > 0:
+            meet = top
+        else:  # bisect for zero edge thickness
+            low, high = 0.0, top
+            for _ in range(60):
+                mid = (low + high) / 2
+                low, high = (mid, high) if thickness(mid) > 0 else (low, mid)
+            meet = low
+        bundles = max(a.semi_aperture, b.semi_aperture)
+        # a sphere (faces meeting at their hemispheres) is drawn whole; an ordinary lens only
+        # when its edge is close to the bundles anyway, so its rim is where the glass ends
+        if meet > bundles and (meet == top or meet <= _CLOSE_TO_BUNDLES * bundles):
+            out[i] = replace(out[i], semi_aperture=meet)
+            out[i + 1] = replace(out[i + 1], semi_aperture=meet)
+    return out
 
 
-def _heights_at(heights: dict, start, i: int) -> float:
-    return 0.0 if start is None else heights[id(start)][i]
-
-
-def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: float
+def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: float,
+                has_field: bool, virtual: bool = True
                 ) -> tuple[list[RayPath], list[str]] | str:
-    """The marginal and chief rays traced exactly (Snell's law at the real spheres), launched
-    from the object point toward the paraxial entrance pupil (edge or centre). Returns the
-    ray paths and notes on lost rays, or the reason (words) there are none."""
+    """The bundles traced exactly (Snell's law at the real surfaces), each ray aimed at its
+    point of the real stop, recorded at every boundary and at the stop plane (so the drawn
+    rays pass the drawn stop). Returns the ray paths and notes on lost rays, or the reason
+    (words) there are none."""
     try:
-        from ..engines import realrays
+        from ..engines import aberrations, realrays
     except ImportError:
         return "need the exact-ray engine"
-    if system.stop is None:
-        return "need a stop"
-    pupil_z, pupil_d = results["entrance pupil position"], results["entrance pupil diameter"]
-    for value in (pupil_z, pupil_d):
-        if isinstance(value, Unavailable):
-            return f"need a finite entrance pupil ({value})"
-    pupil_z, radius = float(pupil_z), float(pupil_d) / 2
-    obj = system.object
-    launches = [("marginal", 0.0, radius), ("marginal", 0.0, -radius)]
-    if obj.at_infinity:
-        slope = -math.tan(float(obj.field_angle))
-        if slope:
-            launches.append(("chief", slope, 0.0))
-    elif float(obj.height):
-        launches.append(("chief", 1.0, 0.0))
-    geo = realrays.geometry(system)
-    indices = [float(n) for n in system.indices()]
-    boundary_steps = [k for k, step in enumerate(geo.steps) if step.boundary >= 0]
+    s = aberrations.setup(system, results)
+    if isinstance(s, Unavailable):
+        if system.stop is None:
+            return "need a stop"
+        return "cannot be traced here: " + str(s).removeprefix("none: ")
+    geo, indices = s.geo, list(s.indices)
     image, where = results["image distance"], results["image position"]
-    virtual_image = (float(where) if not isinstance(image, Unavailable) and image < 0
+    virtual_image = (float(where) if virtual and not isinstance(image, Unavailable) and image < 0
                      and not isinstance(where, Unavailable) else None)
+    obj = system.object
     paths, notes = [], []
-    for role, field_, pupil_y in launches:
-        if obj.at_infinity:  # parallel rays, through the pupil point at the pupil plane
-            y_start = pupil_y + field_ * (z_start - pupil_z)
-            start = realrays.Rays.start(0.0, y_start, z_start, 0.0, field_, 1.0)
-        else:
-            distance, height = float(obj.distance), float(obj.height) * field_
-            start = realrays.Rays.start(0.0, height, -distance, 0.0, pupil_y - height,
-                                        pupil_z + distance)
-        zs, ys = [], []
-        if obj.at_infinity or -float(obj.distance) <= z_start:
-            t = (z_start - start.z[0]) / start.kz[0]
-            zs.append(z_start)
-            ys.append(float(start.y[0] + t * start.ky[0]))
-        else:
-            zs.append(float(start.z[0]))
-            ys.append(float(start.y[0]))
-        lost = None
+    fields = FIELDS if has_field else (0.0,)
+    for f in fields:
+        pupils = np.array([p for p in PUPILS if f or p])
+        start = aberrations.aimed(s, f, np.zeros_like(pupils), pupils)
+        zs = [[] for _ in pupils]
+        ys = [[] for _ in pupils]
+        for k in range(len(pupils)):
+            if obj.at_infinity or -float(obj.distance) <= z_start:
+                t = (z_start - start.z[k]) / start.kz[k]
+                zs[k].append(z_start)
+                ys[k].append(float(start.y[k] + t * start.ky[k]))
+            else:
+                zs[k].append(float(start.z[k]))
+                ys[k].append(float(start.y[k]))
+        alive = np.ones(len(pupils), dtype=bool)
+        lost: dict[tuple[str, str], int] = {}
         rays = start.copy()
-        done = 0  # steps traced so far: each boundary continues from the last (linear, not
-        for k in boundary_steps:  # a trace from the start per boundary)
-            rays = realrays.trace(rays, geo, indices, geo.steps[done: k + 1])
-            done = k + 1
-            if rays.status[0] in realrays.LOST or \
-                    not math.isfinite(float(rays.y[0])):
-                lost = f"an exact {role} ray is {realrays.STATUS_WORDS[int(rays.status[0])]} at " \
-                       f"{geo.steps[k].name}"
-                break
-            zs.append(float(rays.z[0]))
-            ys.append(float(rays.y[0]))
-        virtual_z: tuple[float, ...] = ()
-        virtual_y: tuple[float, ...] = ()
-        if lost:
-            notes.append(lost)
-        else:
-            t = (z_end - rays.z[0]) / rays.kz[0]
-            if t > 0:
-                zs.append(z_end)
-                ys.append(float(rays.y[0] + t * rays.ky[0]))
-            if virtual_image is not None:  # where the light seems to come from
-                back = (virtual_image - rays.z[0]) / rays.kz[0]
-                virtual_z = (float(rays.z[0]), virtual_image)
-                virtual_y = (float(rays.y[0]), float(rays.y[0] + back * rays.ky[0]))
-        paths.append(RayPath(role, "exact", tuple(zs), tuple(ys), virtual_z, virtual_y))
+        for k, step in enumerate(geo.steps):  # each step continues from the last (linear)
+            rays = realrays.trace(rays, geo, indices, geo.steps[k: k + 1])
+            for j in range(len(pupils)):
+                if not alive[j]:
+                    continue
+                if rays.status[j] in realrays.LOST or not math.isfinite(float(rays.y[j])):
+                    alive[j] = False
+                    words = realrays.STATUS_WORDS.get(int(rays.status[j]), "lost")
+                    key = (step.name, words)
+                    lost[key] = lost.get(key, 0) + 1
+                    continue
+                zs[j].append(float(rays.z[j]))
+                ys[j].append(float(rays.y[j]))
+        for (name, words), count in lost.items():
+            where_ = "on the axis" if f == 0 else f"at field {f:g}"
+            notes.append(f"{count} of the {len(pupils)} exact rays {where_} "
+                         f"{'end' if count > 1 else 'ends'} at {name} ({words})")
+        for j, p in enumerate(pupils):
+            virtual_z: tuple[float, ...] = ()
+            virtual_y: tuple[float, ...] = ()
+            if alive[j]:
+                t = (z_end - rays.z[j]) / rays.kz[j]
+                if t > 0:
+                    zs[j].append(z_end)
+                    ys[j].append(float(rays.y[j] + t * rays.ky[j]))
+                if virtual_image is not None:  # where the light seems to come from
+                    back = (virtual_image - rays.z[j]) / rays.kz[j]
+                    virtual_z = (float(rays.z[j]), virtual_image)
+                    virtual_y = (float(rays.y[j]), float(rays.y[j] + back * rays.ky[j]))
+            paths.append(RayPath(_role(f, float(p)), "exact", tuple(zs[j]), tuple(ys[j]),
+                                 virtual_z, virtual_y, f, float(p)))
     return paths, notes

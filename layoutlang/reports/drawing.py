@@ -2,8 +2,11 @@
 
 Glass is a pale fill with a dark outline, mirrors a heavier line with short strokes on their
 back, the stop two dark bars, the image plane a thin upright line, the axis a dash-dot line.
-Marginal rays are solid, chief rays dashed. matplotlib is imported here only, so no other
-command pays for it; output is deterministic (fixed SVG id salt, no dates in the metadata).
+Ray bundles at the axis, an intermediate and the full field each have their own colour; with
+dispersive media the axial bundle is drawn in every wavelength's colour and the off-axis
+bundles (primary wavelength) are dashed. The legend lists only what is drawn. matplotlib is
+imported here only, so no other command pays for it; output is deterministic (fixed SVG id
+salt, no dates in the metadata). The geometry comes from `cross_section.py`.
 """
 
 from __future__ import annotations
@@ -12,12 +15,11 @@ from pathlib import Path
 from typing import Any
 
 
-
 from ..system import IDEAL, MIRROR, System
 from .cross_section import CrossSection, cross_section
 from ..guard import guarded
 
-__all__ = ["figure", "save_drawing", "drawing_bytes", "figure_bytes", "STYLE"]
+__all__ = ["figure", "save_drawing", "drawing_bytes", "figure_bytes", "STYLE", "FIGURE_WIDTH"]
 
 #: Our colours: ink for outlines and labels, a pale blue-grey family for materials, a deep
 #: teal for rays of a single wavelength.
@@ -27,11 +29,16 @@ STYLE = {
     "glass": ["#dbe7ef", "#e6e0f0", "#dcefe3", "#f1e6d6"],
     "mirror": "#4a5563",
     "ray": "#0f6e73",
-    "chief_alpha": 0.9,
+    # one colour per drawn field: the axis, the intermediate field, the full field
+    "fields": ["#0f6e73", "#c07a12", "#8a3b8f"],
     "font": 8,
     "beam": "#b8322b",  # the Gaussian beam's envelope: a translucent warm band
     "beam_alpha": 0.22,
 }
+#: Line styles of the off-axis bundles when colour stands for the wavelength.
+_FIELD_DASHES = {0.7: (0, (5, 3)), 1.0: (0, (7, 2, 1.5, 2))}
+#: Most label levels above the drawing; a name that still overlaps is left out (and said).
+_MAX_LEVELS = 6
 
 #: The drawing's width in inches; its height follows the layout (equal scales on both axes).
 FIGURE_WIDTH = 9.0
@@ -99,7 +106,22 @@ def _nm(system: System, value: Any) -> float:
     return round(float(to_nanometres(float(value), system.units)), 3)
 
 
-def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) -> Any:
+def _field_words(system: System, fraction: float) -> str:
+    from ..testing import format_number
+
+    if fraction == 0:
+        return "on axis"
+    obj = system.object
+    name = "full field" if fraction == 1 else f"{format_number(fraction)} field"
+    if obj.at_infinity:
+        import math
+
+        return f"{name} ({format_number(math.degrees(fraction * float(obj.field_angle)), 4)} deg)"
+    return f"{name} (height {format_number(fraction * float(obj.height), 4)} {system.units})"
+
+
+def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True,
+           width: float = FIGURE_WIDTH) -> Any:
     """A matplotlib Figure of the layout (not attached to any GUI backend).
 
     Args:
@@ -107,10 +129,11 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
         hazards: the script's declared hazards (laser, eye, sunlight): the drawing then carries
             a short caution, since a picture often travels without its report.
         exact: draw exactly traced rays where the layout allows (paraxial otherwise).
+        width: the figure's width in inches.
     """
     from matplotlib.figure import Figure
-    from matplotlib.lines import Line2D
 
+    figure_width = width
     sets = _ray_sets(system, exact)
     section = sets[-1][2]  # the primary wavelength's
     z_min, z_max, y_max = section.extent()
@@ -123,7 +146,6 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
         bar = max(0.22 * section.stop[1], 0.04 * y_max)
     top = max([p.semi_aperture for p in section.profiles]
               + ([section.stop[1] + bar] if section.stop else []))
-    levels = _label_levels(section, width)
     notes = list(section.notes)
     if hazards:
         notes.insert(0, "CAUTION (" + ", ".join(hazards) + "): see the report's caution; follow "
@@ -131,21 +153,27 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
     # Equal scales on both axes (shapes stay true), so the figure's height follows the layout:
     # the axes are placed by hand, in inches, with room for the names above and the words below.
     span = 1.08 * width
-    axes_w = FIGURE_WIDTH - 0.4
-    for _ in range(2):
+    axes_w = figure_width - 0.4
+    for _ in range(3):
         per_unit = axes_w * 72 / span  # points per layout unit
-        y_top = top + (8 + 11 * (max(levels, default=0) + 1)) / per_unit
+        levels = _label_levels(section, 0.62 * STYLE["font"] / per_unit)
+        y_top = top + (8 + 11 * (max((lv for lv in levels if lv is not None), default=0) + 1)
+                       ) / per_unit
         y_bottom = -max(y_max, top) - 16 / per_unit
         axes_h = (y_top - y_bottom) * per_unit / 72
         if axes_h <= MAX_AXES_HEIGHT:
             break
         axes_w *= MAX_AXES_HEIGHT / axes_h
     header, footer = 0.75, 0.5 + 0.15 * len(notes)
+    hidden = [p.name for p, level in zip(section.profiles, levels) if level is None]
+    if hidden:
+        notes.append("names left out where they would overlap: " + ", ".join(hidden))
+        footer += 0.15
     panel = BEAM_PANEL if section.beam is not None else 0.0  # the beam at an enlarged scale
     fig_h = header + axes_h + footer + panel
-    fig = Figure(figsize=(FIGURE_WIDTH, fig_h), dpi=110)
-    left = (FIGURE_WIDTH - axes_w) / 2 / FIGURE_WIDTH
-    ax = fig.add_axes([left, (footer + panel) / fig_h, axes_w / FIGURE_WIDTH, axes_h / fig_h])
+    fig = Figure(figsize=(figure_width, fig_h), dpi=110)
+    left = (figure_width - axes_w) / 2 / figure_width
+    ax = fig.add_axes([left, (footer + panel) / fig_h, axes_w / figure_width, axes_h / fig_h])
     ink, font = STYLE["ink"], STYLE["font"]
 
     ax.axhline(0, color=STYLE["axis"], lw=0.7, ls=(0, (8, 3, 1, 3)), zorder=1)
@@ -157,6 +185,8 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
     for profile in section.profiles:
         _draw_profile(ax, profile, y_max)
     for profile, level in zip(section.profiles, levels):
+        if level is None:
+            continue
         ax.plot([profile.z, profile.z], [profile.semi_aperture, top], color=STYLE["axis"],
                 lw=0.5, zorder=1)
         ax.annotate(profile.name, (profile.z, top), (0, 4 + 11 * level),
@@ -185,33 +215,17 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
         ax.annotate("object", (z, 0), (0, -3), textcoords="offset points", ha="center",
                     va="top", fontsize=font, color=ink)
 
-    handles = []
-    if section.beam is not None:
-        handles.append(_draw_beam(ax, section.beam))
-    for label, colour, rays in sets:
-        for ray in rays.rays:
-            chief = ray.role == "chief"
-            ax.plot(ray.z, ray.y, color=colour, lw=0.9, ls=(0, (5, 3)) if chief else "-",
-                    alpha=STYLE["chief_alpha"] if chief else 1.0, zorder=3)
-            if ray.virtual_z:  # where the light seems to come from: faint and dotted
-                ax.plot(ray.virtual_z, ray.virtual_y, color=colour, lw=0.7, ls=(0, (1, 2)),
-                        alpha=0.6, zorder=3)
-        if label:
-            handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
-    # the legend lists the wavelengths from short to long, wherever the primary is drawn
-    handles.sort(key=lambda h: _legend_order(h.get_label()))
-    kind = "exact" if any(r.label == "exact" for r in section.rays) else "paraxial"
-    if section.rays or section.beam is None:
-        handles.append(Line2D([], [], color=ink, lw=0.9, label=f"marginal ray ({kind})"))
-        handles.append(Line2D([], [], color=ink, lw=0.9, ls=(0, (5, 3)),
-                              label=f"chief ray ({kind})"))
-    fig.legend(handles=handles, loc="upper left", fontsize=font, frameon=False,
-               ncol=min(len(handles), 5), bbox_to_anchor=(0.1 / FIGURE_WIDTH, 1 - 0.32 / fig_h))
+    handles = [_draw_beam(ax, section.beam)] if section.beam is not None else []
+    handles += _draw_rays(ax, system, sets)
+    if handles:
+        fig.legend(handles=handles, loc="upper left", fontsize=font, frameon=False,
+                   ncol=min(len(handles), 4),
+                   bbox_to_anchor=(0.1 / figure_width, 1 - 0.32 / fig_h))
 
     ax.set_xlim(z_min - 0.04 * width, z_max + 0.04 * width)
     ax.set_ylim(y_bottom, y_top)
     if section.beam is not None:
-        beam_ax = fig.add_axes([left, (footer + 0.2) / fig_h, axes_w / FIGURE_WIDTH,
+        beam_ax = fig.add_axes([left, (footer + 0.2) / fig_h, axes_w / figure_width,
                                 (panel - 0.85) / fig_h])
         _beam_panel(beam_ax, section, ax.get_xlim())
     for side in ("top", "right", "left"):
@@ -221,10 +235,10 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
     ax.set_xlabel(f"z along the axis ({section.units}); light starts toward +z", fontsize=font,
                   color=ink)
     title = section.title or "layout"
-    fig.text(0.2 / FIGURE_WIDTH, 1 - 0.1 / fig_h, title, fontsize=font + 2, color=ink,
+    fig.text(0.2 / figure_width, 1 - 0.1 / fig_h, title, fontsize=font + 2, color=ink,
              va="top")
     if notes:
-        fig.text(0.2 / FIGURE_WIDTH, 0.06 / fig_h, "\n".join(notes), fontsize=font - 1,
+        fig.text(0.2 / figure_width, 0.06 / fig_h, "\n".join(notes), fontsize=font - 1,
                  color=STYLE["axis"], va="bottom")
     return fig
 
@@ -293,20 +307,80 @@ def _beam_panel(ax: Any, section: CrossSection, xlim: tuple[float, float]) -> No
                  fontsize=font, color=ink, loc="left", pad=3)
 
 
-def _label_levels(section: CrossSection, width: float) -> list[int]:
-    """A height level for each surface name so neighbouring names do not overlap: a name
-    moves up a level while it would sit within ~7% of the drawing's width of a name already
-    placed on that level."""
-    placed: list[tuple[float, int, int]] = []  # (z, level, characters)
-    levels = []
+def _label_levels(section: CrossSection, char: float) -> list[int | None]:
+    """A height level for each surface name so that no two names overlap: a name moves up a
+    level while its text (about `char` layout units per character, plus a gap) would touch a
+    name already placed on that level; past the last level it is left out (None)."""
+    placed: list[tuple[float, float, int]] = []  # (left, right, level)
+    levels: list[int | None] = []
     for profile in section.profiles:
-        level = 0
-        while any(lv == level and abs(z - profile.z) < 0.011 * width * (n + len(profile.name)) / 2
-                  for z, lv, n in placed) and level < 4:
+        half = char * (len(profile.name) + 1.5) / 2
+        left, right = profile.z - half, profile.z + half
+        level: int | None = 0
+        while any(lv == level and left < r and l < right for l, r, lv in placed):
             level += 1
-        placed.append((profile.z, level, len(profile.name)))
+            if level >= _MAX_LEVELS:
+                level = None
+                break
+        if level is not None:
+            placed.append((left, right, level))
         levels.append(level)
     return levels
+
+
+def _draw_rays(ax: Any, system: System, sets: list[tuple[str, str, CrossSection]]) -> list:
+    """Draw every bundle; return legend handles for exactly what was drawn."""
+    from matplotlib.lines import Line2D
+
+    ink = STYLE["ink"]
+    by_wavelength = len(sets) > 1
+    drawn_fields: list[float] = []
+    handles = []
+    kinds = set()
+    for index, (label, colour, section) in enumerate(sets):
+        primary = index == len(sets) - 1
+        drawn = False
+        for ray in section.rays:
+            if by_wavelength and not primary and ray.field != 0:
+                continue  # other wavelengths: the axial bundle only, or the picture is a tangle
+            if by_wavelength:
+                line_colour, style = colour, _FIELD_DASHES.get(ray.field, "-")
+            else:
+                line_colour, style = _field_colour(section, ray.field), "-"
+            ax.plot(ray.z, ray.y, color=line_colour, lw=0.8, ls=style, zorder=3)
+            if ray.virtual_z:  # where the light seems to come from: faint and dotted
+                ax.plot(ray.virtual_z, ray.virtual_y, color=line_colour, lw=0.6,
+                        ls=(0, (1, 2)), alpha=0.6, zorder=3)
+            drawn = True
+            kinds.add("exact" if ray.label == "exact" else "paraxial")
+            if ray.field not in drawn_fields:
+                drawn_fields.append(ray.field)
+        if by_wavelength and drawn and label:
+            handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
+    if by_wavelength:  # the wavelengths from short to long, wherever the primary is drawn
+        handles.sort(key=lambda h: _legend_order(h.get_label()))
+    section = sets[-1][2]
+    for fraction in sorted(drawn_fields):
+        words = _field_words(system, fraction)
+        if by_wavelength:
+            if fraction:
+                handles.append(Line2D([], [], color=ink, lw=0.9, ls=_FIELD_DASHES[fraction],
+                                      label=words))
+        else:
+            handles.append(Line2D([], [], color=_field_colour(section, fraction), lw=1.5,
+                                  label=words))
+    if kinds:
+        words = {"exact": "exact rays, aimed at the real stop", "paraxial": "paraxial rays"}
+        handles.append(Line2D([], [], color="none",
+                              label=" and ".join(words[k] for k in sorted(kinds))
+                              + (f" ({sets[0][0]})" if not by_wavelength and sets[0][0] else "")))
+    return handles
+
+
+def _field_colour(section: CrossSection, fraction: float) -> str:
+    colours = STYLE["fields"]
+    fields = list(section.fields) or [0.0]
+    return colours[fields.index(fraction) % len(colours)] if fraction in fields else colours[0]
 
 
 def _draw_profile(ax: Any, profile, y_max: float) -> None:
@@ -333,20 +407,22 @@ def _draw_profile(ax: Any, profile, y_max: float) -> None:
 
 @guarded
 def save_drawing(system: System, path: str | Path, kind: str | None = None,
-                 hazards: tuple[str, ...] = (), exact: bool = True) -> None:
-    """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix)."""
+                 hazards: tuple[str, ...] = (), exact: bool = True,
+                 dpi: float | None = None) -> None:
+    """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix); `dpi`
+    sets a PNG's resolution (its width in pixels is FIGURE_WIDTH × dpi)."""
     kind = kind or Path(path).suffix.lower().lstrip(".")
-    Path(path).write_bytes(drawing_bytes(system, kind, hazards, exact))
+    Path(path).write_bytes(drawing_bytes(system, kind, hazards, exact, dpi))
 
 
 @guarded
 def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = (),
-                  exact: bool = True) -> bytes:
+                  exact: bool = True, dpi: float | None = None) -> bytes:
     """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
-    return figure_bytes(lambda: figure(system, hazards, exact), kind)
+    return figure_bytes(lambda: figure(system, hazards, exact), kind, dpi)
 
 
-def figure_bytes(make_figure, kind: str = "svg") -> bytes:
+def figure_bytes(make_figure, kind: str = "svg", dpi: float | None = None) -> bytes:
     """The bytes of the figure `make_figure()` builds, written deterministically (fixed SVG id
     salt, no dates, one font): every picture of layoutlang goes through here."""
     import io
@@ -360,13 +436,10 @@ def figure_bytes(make_figure, kind: str = "svg") -> bytes:
                                 "pdf.compression": 6, "font.family": "DejaVu Sans"}):
         fig = make_figure()
         buffer = io.BytesIO()
-        fig.savefig(buffer, format=kind, metadata=_METADATA[kind])
+        options = {"dpi": dpi} if dpi is not None and kind == "png" else {}
+        fig.savefig(buffer, format=kind, metadata=_METADATA[kind], **options)
     plt.close(fig)
     return buffer.getvalue()
-
-
-
-
 
 
 def _legend_order(label: str) -> float:

@@ -313,6 +313,10 @@ def requested_blocks(program: Program, results: FirstOrder, colour: bool | None 
         from .rays import ray_section_blocks
 
         out += ray_section_blocks(program, results)
+    if program.quality is not None and program.quality.asked:  # reports/quality.py
+        from .quality import quality_blocks
+
+        out += quality_blocks(program, results)
     if colour:  # per-wavelength values, colour requests, achromats, warnings
         from .chromatic import colour_blocks
 

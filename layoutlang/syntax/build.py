@@ -396,6 +396,123 @@ class _Builder(Transformer):
         angle, axis = items
         return t.ImageTilt(angle, str(axis), pos=_pos(meta))
 
+    # --- image quality (grammar/quality.lark) -----------------------------------------------
+    def sensor(self, meta, items):
+        width, height, pitch = items
+        return t.Sensor(width, height, pitch, pos=_pos(meta))
+
+    def wavefront_grid(self, meta, items):
+        return t.WavefrontGrid(items[-1], pos=_pos(meta))  # after the word 'wavefront'
+
+    def wavelength_weights(self, meta, items):
+        return t.WavelengthWeights(tuple(i for i in items if not isinstance(i, Token)),
+                                   pos=_pos(meta))
+
+    def expect_quality(self, meta, items):
+        quality, op, value, waves, tolerance = items
+        return t.QualityExpect(quality, op, value, tolerance, waves is not None, pos=_pos(meta))
+
+    def expect_coverage(self, meta, items):
+        return t.ExpectCoverage(pos=_pos(meta))
+
+    def report_quality_all(self, meta, items):
+        return t.QualityReport(None, pos=_pos(meta))
+
+    def report_quality(self, meta, items):
+        return t.QualityReport(items[0], pos=_pos(meta))
+
+    @staticmethod
+    def _places(items) -> tuple:
+        return tuple(i for i in items if isinstance(i, t.QualityPlace))
+
+    def quality_mtf(self, meta, items):
+        frequency, *places = items
+        kind, value, per = frequency
+        return t.Quality("mtf", value=value, frequency=kind, per=per,
+                         places=self._places(places), pos=_pos(meta))
+
+    def quality_wavefront(self, meta, items):
+        _, measure, *places = items  # the word 'wavefront', then rms | peak-to-valley
+        return t.Quality("wavefront error", str(measure), places=self._places(places),
+                         pos=_pos(meta))
+
+    def quality_wavefront_focus(self, meta, items):
+        return t.Quality("wavefront focus shift", places=self._places(items), pos=_pos(meta))
+
+    def quality_strehl(self, meta, items):
+        return t.Quality("strehl ratio", places=self._places(items), pos=_pos(meta))
+
+    def quality_encircled(self, meta, items):
+        value, *places = items
+        return t.Quality("encircled energy", value=value, places=self._places(places),
+                         pos=_pos(meta))
+
+    def quality_encircled_radius(self, meta, items):
+        value, *places = items
+        return t.Quality("encircled energy radius", value=value, places=self._places(places),
+                         pos=_pos(meta))
+
+    def quality_ensquared(self, meta, items):
+        value, *places = items
+        return t.Quality("ensquared energy", value=value, places=self._places(places),
+                         pos=_pos(meta))
+
+    def quality_zernike(self, meta, items):
+        (term, words), *places = items
+        return t.Quality("zernike", term=term, words=words, places=self._places(places),
+                         pos=_pos(meta))
+
+    def quality_tangential_focus(self, meta, items):
+        return t.Quality("focus", "tangential", places=self._places(items), pos=_pos(meta))
+
+    def quality_sagittal_focus(self, meta, items):
+        return t.Quality("focus", "sagittal", places=self._places(items), pos=_pos(meta))
+
+    def quality_chief_ray_angle(self, meta, items):
+        return t.Quality("chief-ray angle", places=self._places(items), pos=_pos(meta))
+
+    def quality_illumination(self, meta, items):
+        return t.Quality("illumination", places=self._places(items), pos=_pos(meta))
+
+    def wavefront_measure(self, meta, items):
+        return str(items[0])
+
+    def orientation(self, meta, items):
+        return str(items[0])
+
+    def sensor_place(self, meta, items):
+        return str(items[0])
+
+    def frequency_value(self, meta, items):
+        value, per = items
+        return ("value", value, _ident(per))
+
+    def frequency_nyquist(self, meta, items):
+        return ("nyquist", None, None)
+
+    def frequency_half_nyquist(self, meta, items):
+        return ("half nyquist", None, None)
+
+    def zernike_number(self, meta, items):
+        token = items[0]
+        return (t.Number(str(token), None, pos=_token_pos(token)), ())
+
+    def zernike_named(self, meta, items):
+        return (None, tuple(str(i) for i in items))
+
+    def at_field(self, meta, items):
+        return t.QualityPlace("field", items[0], pos=_pos(meta))
+
+    def at_sensor(self, meta, items):
+        return t.QualityPlace("sensor", word=str(items[0]), pos=_pos(meta))
+
+    def at_wavelength(self, meta, items):
+        ref = items[-1]
+        return t.QualityPlace("wavelength", wavelength=ref, pos=_pos(meta))
+
+    def at_orientation(self, meta, items):
+        return t.QualityPlace("orientation", word=str(items[0]), pos=_pos(meta))
+
     # --- real materials and several wavelengths (grammar/materials.lark) -------------------
     def pair(self, meta, items):
         return (items[0], items[1])

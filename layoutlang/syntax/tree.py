@@ -16,6 +16,8 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
+    "Sensor", "WavefrontGrid", "WavelengthWeights", "QualityPlace", "Quality", "QualityExpect",
+    "ExpectCoverage", "QualityReport",
     "ExpectAtInfinity", "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
@@ -698,3 +700,86 @@ class ReportAfter(Statement):
 
     quantity: Quantity
     distance: Expr
+
+
+# --- image quality (grammar/quality.lark) --------------------------------------------------
+
+
+@node
+class Sensor(Statement):
+    """`sensor W by H, pixel pitch P`: a rectangular sensor centred on the axis."""
+
+    width: Expr
+    height: Expr
+    pitch: Expr
+
+
+@node
+class WavefrontGrid(Statement):
+    """`wavefront grid N`: pupil grid cells across the stop diameter."""
+
+    value: Expr
+
+
+@node
+class WavelengthWeights(Statement):
+    """`wavelength weights 1, 2, 1`: in the order of the `wavelengths` statement."""
+
+    values: tuple[Expr, ...]
+
+
+@node
+class QualityPlace(Node):
+    """A qualifier of an image-quality quantity: `at field F`, `at sensor corner`,
+    `at wavelength W` or an orientation word (kind 'field' | 'sensor' | 'wavelength' |
+    'orientation'; `word` holds the sensor place or the orientation)."""
+
+    kind: str
+    value: Expr | None = None
+    word: str = ""
+    wavelength: Node | None = None
+
+
+@node
+class Quality(Node):
+    """An image-quality quantity with its qualifiers.
+
+    kind: 'mtf', 'wavefront error', 'wavefront focus shift', 'strehl ratio', 'encircled energy',
+    'encircled energy radius', 'ensquared energy', 'zernike', 'focus', 'chief-ray angle',
+    'illumination'; `measure` is 'rms' / 'peak-to-valley' (wavefront error) or the orientation
+    (focus); `value` the size (energies) or the frequency number; `frequency` 'value',
+    'nyquist' or 'half nyquist' and `per` the length unit of a frequency value; a Zernike term
+    is `term` (its Noll number) or `words` (its name)."""
+
+    kind: str
+    measure: str = ""
+    value: Expr | None = None
+    frequency: str = ""
+    per: Ident | None = None
+    term: Number | None = None
+    words: tuple[str, ...] = ()
+    places: tuple[QualityPlace, ...] = ()
+
+
+@node
+class QualityExpect(Statement):
+    """`expect QUALITY < V [waves]` (and `=` with a tolerance, `>`, ...)."""
+
+    quality: Quality
+    op: str
+    value: Expr
+    tolerance: Tolerance | None = None
+    waves: bool = False
+
+
+@node
+class ExpectCoverage(Statement):
+    """`expect sensor covered by image circle`."""
+
+
+@node
+class QualityReport(Statement):
+    """`report quality` (quality None: the whole image-quality section) or
+    `report QUALITY` (one quantity)."""
+
+    quality: Quality | None = None

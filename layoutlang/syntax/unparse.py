@@ -190,6 +190,45 @@ def _ExpectRays(node: t.ExpectRays) -> str:
     return text + _tolerance(node.tolerance)
 
 
+# image quality (grammar/quality.lark)
+def _quality_place(place: t.QualityPlace) -> str:
+    if place.kind == "field":
+        return f"at field {expression_text(place.value)}"
+    if place.kind == "sensor":
+        return f"at sensor {place.word}"
+    if place.kind == "wavelength":
+        return f"at wavelength {_wavelength_ref(place.wavelength)}"
+    return place.word
+
+
+def _quality(q: t.Quality) -> str:
+    if q.kind == "mtf":
+        if q.frequency == "value":
+            head = f"mtf at {expression_text(q.value)} cycles per {q.per.text}"
+        else:
+            head = f"mtf at {q.frequency}"
+    elif q.kind == "wavefront error":
+        head = f"wavefront error {q.measure}"
+    elif q.kind in ("encircled energy", "ensquared energy"):
+        head = f"{q.kind} within {expression_text(q.value)}"
+    elif q.kind == "encircled energy radius":
+        head = f"encircled energy radius for {expression_text(q.value)}"
+    elif q.kind == "zernike":
+        head = "zernike " + (expression_text(q.term) if q.term is not None else " ".join(q.words))
+    elif q.kind == "focus":
+        head = f"{q.measure} focus"
+    else:
+        head = q.kind
+    return " ".join([head] + [_quality_place(p) for p in q.places])
+
+
+def _QualityExpect(node: t.QualityExpect) -> str:
+    text = f"expect {_quality(node.quality)} {node.op} {expression_text(node.value)}"
+    if node.waves:
+        text += " waves"
+    return text + _tolerance(node.tolerance)
+
+
 # materials (grammar/materials.lark)
 def _pairs(pairs) -> str:
     return ", ".join(f"({expression_text(a)}, {expression_text(b)})" for a, b in pairs)
@@ -368,6 +407,15 @@ _RULES: dict[str, Callable] = {
     "ImageTilt": lambda n: f"tilt image plane by {expression_text(n.angle)} about {n.axis}",
     "ReportAtField": lambda n: f"report {n.quantity.text} at field {expression_text(n.field)}"
     + ("" if n.wavelength is None else f" at wavelength {_wavelength_ref(n.wavelength)}"),
+    # image quality
+    "Sensor": lambda n: f"sensor {expression_text(n.width)} by {expression_text(n.height)}, "
+    f"pixel pitch {expression_text(n.pitch)}",
+    "WavefrontGrid": lambda n: f"wavefront grid {expression_text(n.value)}",
+    "WavelengthWeights": lambda n: f"wavelength weights {_exprs(n.values)}",
+    "QualityExpect": _QualityExpect,
+    "ExpectCoverage": lambda n: "expect sensor covered by image circle",
+    "QualityReport": lambda n: "report quality" if n.quality is None
+    else f"report {_quality(n.quality)}",
     # materials and wavelengths
     "MediumModel": _MediumModel,
     "Surroundings": lambda n: f"layout in {n.environment}",
