@@ -11,9 +11,10 @@ from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, PERCENT, POWER, QUANTIT
 from .quantities import RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
+from .guard import guarded
 
 __all__ = ["CheckResult", "QuantityReading", "check_program", "evaluate_program", "read_quantity",
-           "display_unit", "to_display", "beam_label"]
+           "display_unit", "to_display", "surface_value", "beam_label"]
 
 
 @dataclass(frozen=True)
@@ -46,11 +47,22 @@ def to_display(value, kind: str, units: str):
     return value
 
 
+def surface_value(request, system, results):
+    """`edge thickness of NAME` or `sag of NAME` (engines/buildable.py)."""
+    from .engines.buildable import edge_thickness, surface_sag
+
+    i = system.boundary_index(request.surface)
+    if request.name == "edge thickness":
+        return edge_thickness(system, results, i)
+    return surface_sag(system, results, i)
+
+
 def beam_label(name: str, place) -> str:
     """A beam quantity's name with its place, as messages show it."""
     return name if place is None or not place.label else f"{name} at {place.label}"
 
 
+@guarded
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     """The first-order results of a program and the outcome of each expectation, as every
     front end reports them (a symbolic script at its nominal values, which must all be given)."""
@@ -62,6 +74,7 @@ def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     return results, check_program(program, results)
 
 
+@guarded
 def check_program(program: Program, results: FirstOrder | None = None) -> list[CheckResult]:
     """Every expectation of the program with its outcome, in script order."""
     if results is None:
@@ -122,6 +135,9 @@ def read_quantity(program: Program, results: FirstOrder, quantity: str, *,
 
         value = beam_value(program.system, quantity, request)
         label = beam_label(quantity, request)
+    elif request is not None and hasattr(request, "surface"):  # edge thickness of NAME
+        value = surface_value(request, program.system, results)
+        label = request.describe()
     elif request is not None:  # colour quantities and `at wavelength W` (engines/chromatic.py)
         from .engines.chromatic import evaluate
 

@@ -13,6 +13,7 @@ from typing import Sequence
 
 from . import __version__
 from .errors import LayoutError
+from .guard import quiet_numeric_warnings, unexpected_error
 
 __all__ = ["main"]
 
@@ -56,6 +57,7 @@ def _parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     args = _parser().parse_args(argv)
+    quiet_numeric_warnings()
     try:
         if args.command == "run":
             return _run(args.file, args.json)
@@ -78,12 +80,23 @@ def main(argv: Sequence[str] | None = None) -> int:
                               expected="--against REV as well, e.g. --against main")
         return _check(args.files, args.json, args.junit, args.against, args.markdown)
     except LayoutError as error:  # the one place a script error becomes a message
-        print(error, file=sys.stderr)
+        file = _file_argument(args)
+        where = f"{file}: " if error.span is None and file and file not in str(error) else ""
+        print(f"{where}{error}", file=sys.stderr)
         return EXIT_ERROR
     except KeyboardInterrupt:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as error:  # noqa: BLE001 - never a traceback: an internal error, exit 2
+        print(unexpected_error(error, _file_argument(args), args.command), file=sys.stderr)
+        return EXIT_ERROR
+
+
+def _file_argument(args: argparse.Namespace) -> str | None:
+    file = getattr(args, "file", None)
+    files = getattr(args, "files", None)
+    return file if isinstance(file, str) else (files[0] if files and len(files) == 1 else None)
 
 
 def _repl(args: argparse.Namespace) -> int:
@@ -136,7 +149,10 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
 
                 for warning in beam_warnings(program):
                     print(f"{path}: {warning}", file=sys.stderr)
-        except LayoutError as error:
+        except BrokenPipeError:
+            raise
+        except Exception as error:  # noqa: BLE001 - a crash in one file never stops the next
+            error = unexpected_error(error, path, "check")
             status = EXIT_ERROR
             outcomes.append((path, [], str(error)))
             if as_json:

@@ -16,10 +16,12 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
-from decimal import Decimal, InvalidOperation
+import decimal
+from decimal import Decimal
 from pathlib import Path
 
 from .errors import LayoutError, LayoutFileError
+from .guard import guarded
 
 __all__ = ["format_text", "format_file", "canonical_number", "FormatResult"]
 
@@ -53,7 +55,7 @@ def canonical_number(text: str) -> str:
     try:
         if Decimal(out) != Decimal(text):  # a guard: spelling only, never the value
             return text
-    except InvalidOperation:
+    except decimal.DecimalException:
         return text
     return out
 
@@ -240,6 +242,19 @@ def _render(lines: list[_Line | None], head_comments: list[str]) -> str:
     return "\n".join(out) + "\n" if out else ""
 
 
+#: Exact decimal arithmetic over the widest exponent range decimal has.
+_EXACT = decimal.Context(prec=200, Emax=decimal.MAX_EMAX, Emin=decimal.MIN_EMIN)
+
+
+def _exact(text: str) -> str:
+    """A number literal's exact decimal value as text; the literal itself when its exponent is
+    beyond even decimal's range (the interpreter refuses such a number with its position)."""
+    try:
+        return str(_EXACT.create_decimal(text).normalize(_EXACT))
+    except decimal.DecimalException:
+        return text.lower()
+
+
 def _same_values(node):
     """The syntax tree with every number literal replaced by its exact decimal value, so two
     spellings of one value compare equal and anything else does not."""
@@ -250,7 +265,7 @@ def _same_values(node):
     if isinstance(node, tuple):
         return tuple(_same_values(item) for item in node)
     if isinstance(node, Number):
-        return replace(node, text=str(Decimal(node.text).normalize()))
+        return replace(node, text=_exact(node.text))
     if is_dataclass(node) and not isinstance(node, type):
         changes = {}
         for f in fields(node):
@@ -261,6 +276,7 @@ def _same_values(node):
     return node
 
 
+@guarded
 def format_text(text: str, file: str = "<script>") -> str:
     """The canonical layout of a script.
 
@@ -276,6 +292,13 @@ def format_text(text: str, file: str = "<script>") -> str:
         LayoutError: the formatted text would not say the same thing (a formatter bug, caught
             before any file is written).
     """
+    from .nesting import room_for_nesting
+
+    with room_for_nesting():  # a 1000-term sum is a tree 1000 levels deep
+        return _format_text(text, file)
+
+
+def _format_text(text: str, file: str) -> str:
     from .syntax.parser import parse
 
     script, source, tokens = _tokens(text, file)

@@ -109,6 +109,16 @@ _COLOUR_ROWS = [
 ]
 QUANTITIES.update({name: QuantityInfo(name, kind, meaning) for name, kind, meaning in _COLOUR_ROWS})
 
+#: Quantities of one surface (engines/buildable.py), taken `of NAME`; not in the report.
+_SURFACE_ROWS = [
+    ("edge thickness", LENGTH, "thickness along the path from the surface to the next at the "
+                               "element's edge (the larger clear or drawn semi-aperture)"),
+    ("sag", LENGTH, "height of the surface above its vertex plane at its clear (or drawn) "
+                    "semi-aperture, + downstream"),
+]
+QUANTITIES.update({name: QuantityInfo(name, kind, meaning)
+                   for name, kind, meaning in _SURFACE_ROWS})
+
 #: Gaussian-beam quantities (engines/beams.py): they need a `beam`; the coupling ones a
 #: `fibre`. BEAM_PLACED are taken at a place: `at NAME` (a boundary, `image`, or a length
 #: named with `let`, after the last boundary) or `at D after`.

@@ -7,8 +7,12 @@ for Python tests.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
+
+#: How a number that is not finite is printed (never 'inf' or 'nan').
+NOT_COMPUTED = "(cannot be computed)"
 
 __all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_number",
            "with_unit", "unit_words"]
@@ -16,9 +20,12 @@ __all__ = ["Outcome", "compare", "assert_quantity", "assert_script", "format_num
 
 def format_number(value: float, digits: int = 6) -> str:
     """A number as reports print it: `digits` significant digits, no exponent for everyday
-    magnitudes, never 'inf' or 'nan' (callers pass only finite values)."""
+    magnitudes, never 'inf' or 'nan': a value that is not finite prints as the words
+    'cannot be computed' (the exit half of the numeric guard, `layoutlang.guard`)."""
     if value == 0:
         return "0"
+    if not math.isfinite(value):
+        return NOT_COMPUTED
     text = f"{value:.{digits}g}"
     if "e" in text:
         mantissa, exponent = text.split("e")
@@ -48,6 +55,8 @@ def unit_words(shown: str, unit: str) -> str:
 
 def with_unit(value: float, unit: str, digits: int = 6) -> str:
     """A number and its unit as every report prints them ('1 diopter', '2.5 mm', '0.3')."""
+    if not math.isfinite(value):
+        return NOT_COMPUTED
     shown = format_number(value, digits)
     return f"{shown} {unit_words(shown, unit)}".rstrip()
 
@@ -85,6 +94,11 @@ def compare(
     """
     if not isinstance(actual, (int, float)):
         return Outcome(False, actual, f"{quantity} is {actual}; expected {op} "
+                       f"{_with_unit(expected, unit)}")
+    if not math.isfinite(actual):
+        from .guard import NOT_FINITE_REASON
+
+        return Outcome(False, actual, f"{quantity} {NOT_FINITE_REASON}; expected {op} "
                        f"{_with_unit(expected, unit)}")
     if op == "=":
         allowed = abs(tolerance * expected) if relative else abs(tolerance or 0.0)

@@ -12,6 +12,7 @@ from pathlib import Path
 
 from .cli import EXIT_ERROR, EXIT_FAILED, EXIT_OK
 from .errors import LayoutError
+from .guard import unexpected_error
 
 __all__ = ["add_commands", "run_command", "write_junit", "report_format", "DRAWING_FORMATS",
            "REPORT_FORMATS"]
@@ -60,8 +61,10 @@ def _format(paths: list[str], check: bool, show_diff: bool) -> int:
     for path in paths:
         try:
             result = format_file(path)
-        except LayoutError as error:
-            print(error, file=sys.stderr)
+        except Exception as error:  # noqa: BLE001 - one file's failure never stops the next
+            if isinstance(error, BrokenPipeError):
+                raise
+            print(unexpected_error(error, path, "format"), file=sys.stderr)
             status = EXIT_ERROR
             continue
         if not result.changed:

@@ -85,7 +85,7 @@ def test_percent_is_relative() -> None:
     ("(-8) ^ 0.5", LayoutValueError, 9, "fractional power"),
     ("2 ^ 5000", LayoutValueError, 13, "exponent is too large"),
     ("10 ^ 400", LayoutValueError, 9, "too large"),
-    ("1e400", LayoutValueError, 9, "no finite value"),
+    ("1e400", LayoutValueError, 9, "too large"),
     ("exp(1000)", LayoutValueError, 9, "too large"),
     ("ln(0)", LayoutValueError, 9, "outside the function's domain"),
     ("acos(2)", LayoutValueError, 9, "outside the function's domain"),

@@ -301,3 +301,56 @@ def test_a_report_section_added_later_is_compared_with_no_change_in_review(repo,
     found = {c.label: c for c in review(before, after).quantities}
     assert found["beam waist"].unit == "mm" and found["beam waist"].difference > 0
     assert found["beam rows field 0.5 coupling"].unit == "%"
+
+
+def test_what_the_script_sets_is_said_once_as_a_statement_not_again_as_a_quantity(repo, capsys
+                                                                                ) -> None:
+    edit(repo, RELAY.replace("object 250 before", "object 300 before"))
+    _, data = compare_json(capsys)
+    assert [(c["change"], c["what"]) for c in data["statements"]] == [("changed", "object")]
+    parts = {q["part"] for q in data["quantities"]}
+    assert parts <= {"first order", "expected"} and "image distance" in {
+        q["quantity"] for q in data["quantities"]}
+
+
+def test_output_goes_to_a_file_and_an_unwritable_one_is_an_error(repo, capsys) -> None:
+    edit(repo, RELAY.replace("radius 52.9", "radius 55"))
+    status, out, err = compare(capsys, "--markdown", "-o", "review.md",
+                               "HEAD~1:optics/relay.lay", "optics/relay.lay")
+    assert out == "" and "review.md: written" in err
+    assert (repo / "review.md").read_text(encoding="utf-8").startswith("**optics/relay.lay**")
+    status, _, err = compare(capsys, "-o", "no/such/folder/review.md",
+                             "HEAD~1:optics/relay.lay", "optics/relay.lay")
+    assert status == 2 and "cannot write no/such/folder/review.md" in err
+
+
+def test_the_session_shows_colour_and_ray_changes_too(tmp_path) -> None:
+    """One engine: what compare lists beyond first order, the session lists after an edit."""
+    from layoutlang.repl.workspace import Workspace
+
+    source = Path(__file__).parents[1] / "examples" / "cemented_achromat.lay"
+    script = tmp_path / "scope.lay"
+    script.write_text(source.read_text(encoding="utf-8"), encoding="utf-8")
+    out = Workspace.open(script).run("change front radius to 66")
+    assert "axial colour between F and C" in out and "→" in out
+    assert "now     FAILS (was holds): expect axial colour between F and C" in out
+
+
+def test_a_symbolic_scripts_closed_forms_and_sensitivities_are_compared(repo, capsys) -> None:
+    source = Path(__file__).parents[1] / "examples" / "symbolic_thick_lens.lay"
+    text = source.read_text(encoding="utf-8")
+    (repo / "thick.lay").write_text(text, encoding="utf-8")
+    git(repo, "add", "thick.lay")
+    git(repo, "commit", "-q", "-m", "thick")
+    # a nominal value changes numbers, not the closed forms
+    (repo / "thick.lay").write_text(text.replace("R2 = -60", "R2 = -50"), encoding="utf-8")
+    _, data = compare_json(capsys, "HEAD:thick.lay", "thick.lay")
+    parts = {q["part"] for q in data["quantities"]}
+    assert "closed forms" not in parts and "sensitivities" in parts
+    # the layout's structure changes the closed forms
+    (repo / "thick.lay").write_text(text.replace("radius R2 into air", "radius 2*R2 into air"),
+                                    encoding="utf-8")
+    _, data = compare_json(capsys, "HEAD:thick.lay", "thick.lay")
+    lensmaker = quantity(data, "lensmaker equation")
+    assert lensmaker["part"] == "closed forms" and "2*R2" in lensmaker["after"]["text"]
+    assert "2*R2" not in lensmaker["before"]["text"]

@@ -368,9 +368,7 @@ class RayAnalysis:
     marginal: tuple[MarginalRow, ...] = ()
     chief: tuple[ChiefRow, ...] = ()
     spots: tuple[SpotRow, ...] = ()
-    best_focus_shift: Value = 0.0
-    focus_verdict: str = ""
-    height_verdict: str = ""
+    best_focus_shift: Value = 0.0  # the verdicts in words: reports/verdicts.py
     unavailable: Unavailable | None = None
     setups: tuple[Any, ...] = field(default=(), compare=False, repr=False)
 
@@ -427,57 +425,5 @@ def analyse(system: System, settings: RaySettings = RaySettings(),
     spots = tuple(spot(s, f, settings.grid, rays=axial if f == 0.0 and s is primary else None)
                   for f in fields for s in setups)
     best = best_focus_shift(primary, settings.grid, rays=axial)
-    units = system.units
-    focus_verdict = _focus_verdict(margins, dof, settings.tolerance, units)
-    height_verdict = _height_verdict(chiefs, airy, settings.tolerance, units)
     return RayAnalysis(settings, primary.wavelength, na, dof, airy, margins, chiefs, spots, best,
-                       focus_verdict, height_verdict, None, tuple(setups))
-
-
-def _fmt(value: float, units: str) -> str:
-    from ..testing import format_number
-
-    return f"{format_number(value, 4)} {units}"
-
-
-def _focus_verdict(rows, dof: Value, tolerance: float | None, units: str) -> str:
-    shifts = [abs(r.longitudinal) for r in rows if not isinstance(r.longitudinal, Unavailable)]
-    lost = [r for r in rows if isinstance(r.longitudinal, Unavailable)]
-    if not shifts:
-        return "no marginal ray reaches the image: the paraxial focus cannot be judged"
-    worst = max(shifts)
-    if tolerance is not None:
-        limit, what = tolerance, f"the stated tolerance {_fmt(tolerance, units)}"
-    elif isinstance(dof, Unavailable):
-        return f"largest real-minus-paraxial focus {_fmt(worst, units)} (no depth of focus: {dof})"
-    else:
-        limit, what = dof / 2, (f"half the depth of focus (λ/NA² = {_fmt(dof, units)}, "
-                                f"so ±{_fmt(dof / 2, units)})")
-    ratio = worst / limit if limit else math.inf
-    tail = f"; {len(lost)} marginal ray(s) lost" if lost else ""
-    if not isinstance(dof, Unavailable) and dof:
-        # the measure `expect marginal focus shift < N depth of focus` compares
-        tail = f"; that is {worst / dof:.3g} depth of focus" + tail
-    if worst <= limit:
-        return (f"paraxial focus holds: the real focus stays within {what} "
-                f"(largest shift {_fmt(worst, units)}){tail}")
-    times = f"{ratio:.3g} times" if math.isfinite(ratio) else "beyond"
-    return (f"paraxial focus does not hold: the real focus moves {_fmt(worst, units)}, "
-            f"{times} {what}{tail}")
-
-
-def _height_verdict(rows, airy: Value, tolerance: float | None, units: str) -> str:
-    diffs = [abs(r.difference) for r in rows if not isinstance(r.difference, Unavailable)]
-    if not diffs:
-        return "no chief ray reaches the image: the paraxial image height cannot be judged"
-    worst = max(diffs)
-    if tolerance is not None:
-        limit, what = tolerance, f"the stated tolerance {_fmt(tolerance, units)}"
-    elif isinstance(airy, Unavailable):
-        return f"largest real-minus-paraxial image height {_fmt(worst, units)}"
-    else:
-        limit, what = airy, f"the Airy radius 0.61 λ/NA = {_fmt(airy, units)}"
-    if worst <= limit:
-        return f"paraxial image height holds: within {what} (largest {_fmt(worst, units)})"
-    return (f"paraxial image height does not hold: real and paraxial heights differ by up to "
-            f"{_fmt(worst, units)}, more than {what}")
+                       None, tuple(setups))

@@ -17,6 +17,7 @@ from typing import Any
 from ..system import System
 from . import paraxial
 from .paraxial import Step, TRANSFER, formulas
+from ..guard import guarded
 
 __all__ = ["Unavailable", "FirstOrder", "first_order", "RELATIVE_ZERO"]
 
@@ -112,6 +113,7 @@ def _finite(values: dict[str, Value]) -> dict[str, Value]:
     return found
 
 
+@guarded
 def first_order(system: System) -> FirstOrder:
     """Evaluate all first-order properties of a numeric layout."""
     return _Evaluation(system).run()

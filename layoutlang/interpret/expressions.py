@@ -12,10 +12,15 @@ import math
 from typing import Any, Callable
 
 from ..errors import LayoutError, LayoutNameError, LayoutUnitError, LayoutValueError, Span
+from ..guard import LARGEST, SMALLEST, admissible
 from ..measure import Measure, unit_scale
 from ..syntax import tree as t
 
-__all__ = ["NumericBackend", "ExpressionEvaluator", "FUNCTIONS"]
+__all__ = ["NumericBackend", "ExpressionEvaluator", "FUNCTIONS", "MAX_NUMBER_CHARACTERS"]
+
+#: The longest number literal read (a double holds 17 significant digits; exact symbolic
+#: arithmetic on longer ones only grows).
+MAX_NUMBER_CHARACTERS = 40
 
 #: Function name → (kind of argument, kind of result), kinds: 'angle', 'number', 'any'.
 FUNCTIONS = {
@@ -87,8 +92,25 @@ class ExpressionEvaluator:
         self.script_unit = script_unit
         self.span = span
         self.backend = backend
+        self._depth = 0
 
     def evaluate(self, node: t.Expr) -> Measure:
+        """The value of an expression; the whole expression's value must pass the numeric
+        guard (`guard.admissible`), its parts need only be finite."""
+        self._depth += 1
+        try:
+            result = self._evaluate(node)
+        finally:
+            self._depth -= 1
+        if self._depth == 0:
+            why = admissible(result.value)
+            if why:
+                raise LayoutValueError(why, self.span(node),
+                                       expected=f"a magnitude between {SMALLEST:g} and "
+                                                f"{LARGEST:g}, or 0")
+        return result
+
+    def _evaluate(self, node: t.Expr) -> Measure:
         try:
             result = getattr(self, "_" + type(node).__name__.lower())(node)
         except LayoutError:
@@ -105,7 +127,16 @@ class ExpressionEvaluator:
 
     # 1.5, 20 mm, 5 deg, 2 diopters, 1 %
     def _number(self, node: t.Number) -> Measure:
+        if len(node.text) > MAX_NUMBER_CHARACTERS:
+            raise LayoutValueError(
+                f"this number has more than {MAX_NUMBER_CHARACTERS} characters",
+                self.span(node), expected="a number such as 12.5 or 1.5e-3")
         value = self.backend.number(node.text)
+        why = admissible(value)
+        if why:
+            raise LayoutValueError(why, self.span(node),
+                                   expected=f"a magnitude between {SMALLEST:g} and {LARGEST:g}, "
+                                            "or 0")
         if node.unit is None:
             return Measure(value)
         factor, length, angle, relative = unit_scale(node.unit, self.script_unit)

@@ -14,7 +14,8 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import LayoutFileError, LayoutNameError, LayoutUnitError
-from ..errors import LayoutValueError, Span
+from ..errors import LayoutError, LayoutValueError, Span
+from ..guard import as_arithmetic_error, guarded
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion
 from ..syntax import tree as t
@@ -26,6 +27,7 @@ from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
 from .symbolstatements import SymbolicStatements
+from .buildstatements import SURFACE_QUANTITIES, BuildStatements
 from ..engines.raysettings import RaySettings
 
 __all__ = ["Expectation", "Program", "interpret", "check_statements", "load_file",
@@ -67,6 +69,7 @@ class Program:
     rays: RaySettings = RaySettings()  # what `report exact rays` samples (raystatements.py)
     ray_reports: tuple[str, ...] = ()  # 'exact rays', 'seidel sums', in script order
     ray_requests: tuple = ()  # raysettings.RayRequest: `report Q at field F [at wavelength W]`
+    surface_requests: tuple = ()  # buildable.SurfaceRequest: `report edge thickness of NAME`
     warnings: tuple[str, ...] = ()  # e.g. a wavelength outside a material's valid range
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
@@ -88,6 +91,7 @@ def load_file(path: str | Path) -> Program:
     return interpret(parse(text, str(path)), base=path.parent)
 
 
+@guarded
 def interpret(script: t.Script, base: Path | None = None) -> Program:
     """Build the Program of a parsed script (`base` resolves `use "file"`)."""
     return _Interpreter(script, base or Path.cwd()).run()
@@ -99,7 +103,8 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
     _Interpreter(script, base or Path.cwd()).run_statements()
 
 
-class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements):
+class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
+                   BuildStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -238,6 +243,13 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
                     self.execute(statement)
                 except RecursionError:
                     raise LayoutValueError(TOO_DEEP, self.span(statement)) from None
+                except LayoutError:
+                    raise
+                except Exception as error:  # noqa: BLE001 - arithmetic said at its statement
+                    converted = as_arithmetic_error(error, span=self.span(statement))
+                    if converted is None:
+                        raise
+                    raise converted from None
 
     def execute(self, statement: t.Statement) -> None:
         handler = _HANDLERS.get(type(statement).__name__)
@@ -395,6 +407,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.clear_diameter is not None:
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
+        self.remember_boundary(node)
         self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
         self.current_medium = after
 
@@ -481,6 +494,11 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             return
         if self.report_beam(node):  # beam quantities (beamstatements.py)
             return
+        for quantity in node.quantities:
+            if self.quantity(quantity).name in SURFACE_QUANTITIES:
+                raise LayoutValueError(
+                    f"say which surface: 'report {self.quantity(quantity).name} of front'",
+                    self.span(quantity))
         self.reports.append(tuple(self.quantity(q).name for q in node.quantities))
 
     def statement_Hazard(self, node: t.Hazard) -> None:
@@ -575,12 +593,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         expectations = tuple(expectations)
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
-        return self.finish_symbolic(Program(
+        return self.check_buildable(self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports),
             self.beam_hazards(self.hazards), dict(self.names), rays=rays,
             ray_reports=self.ray_reports(), ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
-            beams=self.beam_settings(system)))
+            beams=self.beam_settings(system), surface_requests=self.surface_reports(system))))
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -627,7 +645,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         beam = self.beam_expectation(node)  # beam quantities (beamstatements.py)
         if beam is not None:
             return beam
-        request = self.expect_request(node)  # colour quantities, `at wavelength F`
+        if self.quantity(node.quantity).name in SURFACE_QUANTITIES:  # edge thickness of NAME
+            request = self.surface_request(self.quantity(node.quantity).name,
+                                           getattr(node, "qualifiers", ()), node,
+                                           self._materials()["system"])
+        else:
+            request = self.expect_request(node)  # colour quantities, `at wavelength F`
         if request is None and (isinstance(node, t.ExpectRays)
                                 or is_ray_quantity(node.quantity.text)):
             return self.ray_expectation(node)
@@ -686,6 +709,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
+                BuildStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

@@ -124,6 +124,8 @@ class MaterialStatements:
         self.quantity(node.quantity)  # unknown names fail here, where they are written
         if self.report_ray_qualified(node):  # a spot radius at a wavelength (raystatements.py)
             return
+        if self.report_surface(node):  # edge thickness of NAME (buildstatements.py)
+            return
         if self.report_beam(node):  # `report beam radius at front` (beamstatements.py)
             return
         self._materials()["reports"].append((node, (self.file, self.lines)))

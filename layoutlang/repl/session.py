@@ -21,6 +21,7 @@ from prompt_toolkit.output import Output
 from prompt_toolkit.validation import Validator
 
 from ..errors import LayoutError
+from ..guard import quiet_numeric_warnings, unexpected_error
 from .completer import LayoutCompleter
 from .keys import session_key_bindings
 from .lexer import LayoutLexer
@@ -131,6 +132,8 @@ class Session:
             return not self.may_leave()
         except LayoutError as error:  # run() reports errors itself; this is a last guard
             self.say(str(error))
+        except Exception as error:  # noqa: BLE001 - the session survives, edits are kept
+            self.say(str(unexpected_error(error, command="repl")))
         return True
 
     def may_leave(self) -> bool:
@@ -149,10 +152,11 @@ def main_repl(file: str | None, history_path: Path | None) -> int:
     """`layoutlang repl [FILE]`: exit status 0, or 2 when FILE cannot be loaded."""
     from .history import make_history
 
+    quiet_numeric_warnings()
     try:
         workspace = Workspace.open(Path(file)) if file else Workspace()
-    except LayoutError as error:
-        print(error, file=sys.stderr)
+    except Exception as error:  # noqa: BLE001 - a message, never a traceback
+        print(unexpected_error(error, file, "repl"), file=sys.stderr)
         return 2
     session = Session(workspace, history=make_history(history_path))
     opened = f"opened {file}" if file and workspace.statements else (

@@ -157,6 +157,13 @@ class Workspace:
             except LayoutError as error:
                 out.append(str(error))
                 break
+            except LeaveRequested:
+                raise
+            except Exception as error:  # noqa: BLE001 - said in words; the layout is kept
+                from ..guard import unexpected_error
+
+                out.append(str(unexpected_error(error, command="repl")))
+                break
         return "\n".join(part for part in out if part)
 
     def execute(self, statement: t.Statement, text: str = "") -> str:

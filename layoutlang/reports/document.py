@@ -22,6 +22,7 @@ from ..testing import format_number
 from .blocks import Block, Heading, Line, Table
 from .text import (LAYOUT_HEADINGS, SIGN_CONVENTION, first_order_rows, layout_rows,
                    requested_blocks)
+from ..guard import guarded
 
 __all__ = ["Sections", "Document", "gather", "render_document", "markdown", "html_document",
            "latex_document"]
@@ -334,6 +335,7 @@ def latex_document(s: Sections, drawing_file: str | None) -> str:
 
 # --- one entry point -------------------------------------------------------------------------
 
+@guarded
 def render_document(path: str, doc_format: str, output: str | None = None) -> Document:
     """Build the report of one script.
 

@@ -15,6 +15,7 @@ from typing import Any
 
 from ..system import IDEAL, MIRROR, System
 from .cross_section import CrossSection, cross_section
+from ..guard import guarded
 
 __all__ = ["figure", "save_drawing", "drawing_bytes", "STYLE"]
 
@@ -198,8 +199,7 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True) ->
         if label:
             handles.append(Line2D([], [], color=colour, lw=1.5, label=label))
     # the legend lists the wavelengths from short to long, wherever the primary is drawn
-    handles.sort(key=lambda h: float(h.get_label().split()[0]) if h.get_label()[:1].isdigit()
-                 else 0.0)
+    handles.sort(key=lambda h: _legend_order(h.get_label()))
     kind = "exact" if any(r.label == "exact" for r in section.rays) else "paraxial"
     if section.rays or section.beam is None:
         handles.append(Line2D([], [], color=ink, lw=0.9, label=f"marginal ray ({kind})"))
@@ -331,6 +331,7 @@ def _draw_profile(ax: Any, profile, y_max: float) -> None:
         ax.plot(z, y, color=ink, lw=1.0, zorder=4)
 
 
+@guarded
 def save_drawing(system: System, path: str | Path, kind: str | None = None,
                  hazards: tuple[str, ...] = (), exact: bool = True) -> None:
     """Write the drawing to `path` (svg, png or pdf, from `kind` or the file suffix)."""
@@ -338,6 +339,7 @@ def save_drawing(system: System, path: str | Path, kind: str | None = None,
     Path(path).write_bytes(drawing_bytes(system, kind, hazards, exact))
 
 
+@guarded
 def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = (),
                   exact: bool = True) -> bytes:
     """The drawing as the bytes of an svg, png or pdf file (the same layout, the same bytes)."""
@@ -355,3 +357,12 @@ def drawing_bytes(system: System, kind: str = "svg", hazards: tuple[str, ...] = 
 
 
 
+
+
+def _legend_order(label: str) -> float:
+    """Where a legend entry goes, short wavelengths first: the first number of its label (one
+    entry lists every wavelength, '587.562, 486.1 nm', when the media do not disperse)."""
+    import re
+
+    match = re.match(r"\s*([0-9]+(?:\.[0-9]*)?)", label)
+    return float(match.group(1)) if match else 0.0

@@ -9,13 +9,15 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, REPORT_ORDER
 from .text import SIGN_CONVENTION
+from ..guard import guarded
 
 __all__ = ["round12", "program_json", "setting_json", "check_json", "dumps"]
 
 
 def round12(value: float) -> float:
-    """Twelve significant digits: enough for any optics, stable across platforms."""
-    return float(f"{value:.12g}")
+    """Twelve significant digits: enough for any optics, stable across platforms (a value
+    that is not finite stays so, for `dumps` to replace)."""
+    return float(f"{float(value):.12g}")
 
 
 def _quantity(name: str, value, units: str) -> dict:
@@ -79,6 +81,7 @@ def setting_json(system) -> dict:
     }
 
 
+@guarded
 def program_json(program: Program, results: FirstOrder, checked: list[CheckResult]) -> dict:
     system = program.system
     units = system.units
@@ -138,6 +141,7 @@ def _colour(program: Program, results: FirstOrder) -> dict:
     return {"colour": colour_json(program, results)} if has_colour(program) else {}
 
 
+@guarded
 def check_json(program: Program, checked: list[CheckResult]) -> dict:
     return {
         "file": program.file,
@@ -148,4 +152,8 @@ def check_json(program: Program, checked: list[CheckResult]) -> dict:
 
 
 def dumps(data) -> str:
-    return json.dumps(data, indent=2, sort_keys=False, ensure_ascii=False, allow_nan=False) + "\n"
+    """JSON text; a value that is not finite is written as null with the reason beside it
+    (`guard.json_safe`), never as NaN or Infinity."""
+    from ..guard import json_safe
+
+    return json.dumps(json_safe(data), indent=2, sort_keys=False, ensure_ascii=False, allow_nan=False) + "\n"

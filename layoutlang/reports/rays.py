@@ -11,9 +11,11 @@ import math
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, FIELD_DEFAULTS
+from ..guard import finite_or_unavailable
 from ..testing import format_number
 from .blocks import Block, Heading, Line, Table, to_text
 from .text import aligned
+from .verdicts import focus_verdict, height_verdict
 
 #: Indent of the rows under a sub-heading of the exact-ray section.
 _ROWS = "    "
@@ -24,12 +26,14 @@ __all__ = ["ray_sections", "ray_section_blocks", "exact_ray_lines", "exact_ray_b
 
 
 def _len(value, units: str) -> str:
+    value = finite_or_unavailable(value)
     if isinstance(value, Unavailable):
         return str(value)
     return f"{format_number(value, 5)} {units}"
 
 
 def _pct(value) -> str:
+    value = finite_or_unavailable(value)
     if isinstance(value, Unavailable):
         return str(value)
     return f"{format_number(value * 100, 4)} %"
@@ -82,7 +86,7 @@ def exact_ray_blocks(program: Program, results: FirstOrder) -> list[Block]:
             lost.append(f"pupil {format_number(r.pupil, 4)}: {r.lost}")
     out.append(Table(rows, indent=_ROWS) if a.marginal else Line("(no pupil sampled)", _ROWS))
     out += [Line(f"lost: {words}", _ROWS) for words in lost]
-    out.append(Line(f"verdict: {a.focus_verdict}"))
+    out.append(Line(f"verdict: {focus_verdict(a, units)}"))
     out.append(Line("chief rays: height on the image plane"))
     rows = [["field", "real height", "paraxial height", "real - paraxial", "distortion"]]
     lost = []
@@ -94,7 +98,7 @@ def exact_ray_blocks(program: Program, results: FirstOrder) -> list[Block]:
             lost.append(f"field {format_number(r.field, 4)}: {r.lost}")
     out.append(Table(rows, indent=_ROWS))
     out += [Line(f"lost: {words}", _ROWS) for words in lost]
-    out.append(Line(f"verdict: {a.height_verdict}"))
+    out.append(Line(f"verdict: {height_verdict(a, units)}"))
     out.append(Line(f"spots on the image plane: pupil grid {program.rays.grid} across, radii "
                     f"about the centroid"))
     rows = [["field", "wavelength", "rays reaching", "rms radius", "largest radius"]]
@@ -247,6 +251,7 @@ def rays_json(program: Program, results: FirstOrder) -> dict:
             found["exact_rays"] = {"why": a.unavailable.reason}
         else:
             v = _json_value
+            units = program.system.units
             found["exact_rays"] = {
                 "wavelength": v(a.wavelength),
                 "numerical_aperture": v(a.numerical_aperture),
@@ -255,13 +260,13 @@ def rays_json(program: Program, results: FirstOrder) -> dict:
                               "paraxial_focus": v(r.paraxial_focus),
                               "longitudinal": v(r.longitudinal), "transverse": v(r.transverse),
                               "lost": r.lost} for r in a.marginal],
-                "focus_verdict": a.focus_verdict,
+                "focus_verdict": focus_verdict(a, units),
                 "chief": [{"field": r.field, "real_height": v(r.real_height),
                            "paraxial_height": v(r.paraxial_height),
                            "distortion_percent": v(r.distortion * 100)
                            if not isinstance(r.distortion, Unavailable) else v(r.distortion),
                            "lost": r.lost} for r in a.chief],
-                "height_verdict": a.height_verdict,
+                "height_verdict": height_verdict(a, units),
                 "spots": [{"field": r.field, "wavelength": v(r.wavelength), "rays": r.rays,
                            "reaching": r.used, "rms_radius": v(r.rms_radius),
                            "largest_radius": v(r.max_radius), "lost": r.lost} for r in a.spots],

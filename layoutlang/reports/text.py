@@ -14,6 +14,7 @@ from ..engines.firstorder import FirstOrder, Unavailable
 from ..interpret.interpreter import Program
 from ..quantities import QUANTITIES, RAY_QUANTITIES, REPORT_ORDER
 from ..system import IDEAL, MIRROR, System
+from ..guard import finite_or_unavailable, guarded
 from ..testing import format_number, with_unit
 
 __all__ = [
@@ -50,6 +51,9 @@ def aligned(rows: list[list[str]], indent: str = "  ") -> list[str]:
 
 
 def _length(value, units: str) -> str:
+    value = finite_or_unavailable(value)
+    if isinstance(value, Unavailable):
+        return str(value)
     return f"{format_number(value)} {units}"
 
 
@@ -155,6 +159,7 @@ def _where(value: float, vertex: str, units: str, point: str = "") -> str:
 def describe_value(name: str, value, units: str) -> str:
     """A quantity's value with its unit, or the reason it has none; a position also says
     from where it is measured (`11.147 mm after the first vertex`)."""
+    value = finite_or_unavailable(value)
     if isinstance(value, Unavailable):
         return str(value)
     kind = QUANTITIES[name].kind
@@ -228,6 +233,13 @@ def requested_blocks(program: Program, results: FirstOrder, colour: bool | None 
                 rows = requested_ray_rows(program, results, names)
                 if rows:
                     out.append(Table(rows, header=False))
+    if getattr(program, "surface_requests", ()):  # `report edge thickness of NAME`
+        from ..checks import surface_value
+
+        requests = program.surface_requests
+        out.append(Heading("requested: " + ", ".join(r.describe() for r in requests)))
+        out.append(Table([[r.describe(), describe_value(r.name, surface_value(
+            r, system, results), system.units)] for r in requests], header=False))
     if program.ray_requests:  # `report Q at field F` (reports/rays.py)
         from .rays import ray_request_blocks
 
@@ -247,6 +259,7 @@ def requested_blocks(program: Program, results: FirstOrder, colour: bool | None 
     return out
 
 
+@guarded
 def full_report(program: Program, results: FirstOrder, checked: list[CheckResult]) -> str:
     system = program.system
     title = system.title or program.file

@@ -4,7 +4,8 @@ Data-driven: the rows come from what the program itself reports and expects, not
 kept here. The first-order report (always printed), each `report` request, the colour and
 exact-ray sections the script asks for, any other section of the machine-readable report
 (`reports/machine.program_json`, so a section added there later is compared with no change
-here), and every expectation's value as `checks.read_quantity` computed it (so any quantity
+here), what a symbolic script's `derive`, `solve` and `sensitivity` print, and every
+expectation's value as `checks.read_quantity` computed it (so any quantity
 that can be expected is compared). A label names a quantity with its qualifiers; two revisions
 are compared label by label.
 """
@@ -30,8 +31,9 @@ class Reading:
 
     group: str  # 'first order', 'requested', 'colour', 'exact rays', 'third order', 'expected', …
     label: str  # the quantity with its qualifiers, e.g. 'axial colour between F and C'
-    value: Any  # float | str (why there is none)
+    value: Any  # float | str (why there is none, or the text itself when `words`)
     unit: str = ""
+    words: bool = False  # the value is text by nature (a closed form), not a missing number
 
     @property
     def number(self) -> float | None:
@@ -132,9 +134,11 @@ def ray_readings(program: Program, results: FirstOrder, checked) -> Iterable[Rea
             yield _quantity("third order", program, results, name)
 
 
-#: Sections of the machine-readable report that the readers above cover (or that hold no
-#: quantities); every other section is read generically.
+#: Sections of the machine-readable report that the readers above cover, or that hold the
+#: prescription itself (boundaries, setting: the statement changes say those) or no
+#: quantities; every other section is read generically.
 _COVERED = frozenset({"file", "title", "units", "sign_convention", "cautions", "boundaries",
+                      "setting",
                       "first_order", "notes", "expectations", "colour", "rays",
                       "requested_rays"})
 
@@ -202,6 +206,36 @@ def other_section_readings(program: Program, results: FirstOrder, checked) -> It
             yield from _walk(_words(section), [_words(section)], content, "")
 
 
+def closed_form_readings(program: Program, results: FirstOrder, checked
+                         ) -> Iterable[Reading]:
+    """What a symbolic script's `derive`, `solve` and `sensitivity` statements give: each
+    closed form and each solution as `layoutlang derive` prints it (numbers at nominal are
+    compared elsewhere), and each sensitivity at the nominal values."""
+    part = program.symbolic
+    if part is None or not (part.derives or part.solves or part.sensitivities):
+        return
+    from ..errors import LayoutError
+    from ..symbolic import render
+
+    try:
+        outcome = render.carry_out(program)
+        printed = render.text(outcome)
+    except LayoutError as error:
+        yield Reading("closed forms", "design equations", error.message)
+        return
+    for block in printed.split("\n\n")[1:]:  # after the heading (file, symbols, signs)
+        lines = [line.strip() for line in block.strip("\n").splitlines() if line.strip()]
+        if len(lines) < 2 or lines[0].startswith("sensitivities"):
+            continue
+        kept = [line for line in lines[1:] if not line.startswith(("at nominal:", "note:"))]
+        yield Reading("closed forms", lines[0], "; ".join(kept or lines[1:]), words=True)
+    for rows in outcome.sensitivities:
+        for row in rows:
+            value = row.value if row.value is not None else (row.note or "not computed")
+            yield _reading("sensitivities", f"sensitivity of {row.quantity} to {row.symbol}",
+                           value, row.unit)
+
+
 def expected_readings(program: Program, results: FirstOrder, checked) -> Iterable[Reading]:
     """The value behind every expectation, as the check computed it."""
     for result in checked:
@@ -213,7 +247,8 @@ Reader = Callable[[Program, FirstOrder, Sequence[CheckResult]], Iterable[Reading
 
 #: The readers, in the order their rows are shown.
 READERS: list[Reader] = [first_order_readings, requested_readings, colour_readings,
-                         ray_readings, other_section_readings, expected_readings]
+                         ray_readings, other_section_readings, closed_form_readings,
+                         expected_readings]
 
 
 def readings(program: Program, results: FirstOrder, checked: Sequence[CheckResult]

@@ -198,6 +198,8 @@ def _reading_json(reading) -> dict | None:
 
     if reading is None:
         return None
+    if reading.words:
+        return {"value": None, "text": str(reading.value)}
     if reading.number is None:
         return {"value": None, "unit": reading.unit, "why": str(reading.value)}
     return {"value": round12(reading.number), "unit": reading.unit, "shown": reading.text}

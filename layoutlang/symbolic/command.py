@@ -10,6 +10,7 @@ import argparse
 import sys
 
 from ..errors import LayoutValueError
+from ..guard import guarded
 
 __all__ = ["add_command", "run"]
 
@@ -25,6 +26,7 @@ def add_command(commands) -> None:
     style.add_argument("--markdown", action="store_true", help="a Markdown report section")
 
 
+@guarded
 def run(args: argparse.Namespace) -> int:
     """Print what a symbolic script derives (a LayoutError reaches `cli.main`)."""
     from ..interpret.interpreter import load_file

@@ -144,8 +144,23 @@ class FlintPoly:
         return FlintPoly(self.p / self.ring.ctx.constant(int(value)), self.ring)
 
     def factor_list(self) -> tuple[int, list[tuple["FlintPoly", int]]]:
-        coefficient, factors = self.p.factor()
+        try:
+            coefficient, factors = self.p.factor()
+        except OverflowError:  # python-flint sorts the factors by a key that overflows when a
+            return self._factor_list_by_sympy()  # coefficient is big: same factors by sympy
         return int(coefficient), [(FlintPoly(f, self.ring), int(e)) for f, e in factors]
+
+    def _factor_list_by_sympy(self) -> tuple[int, list[tuple["FlintPoly", int]]]:
+        from sympy import ZZ
+        from sympy.polys.orderings import lex
+        from sympy.polys.rings import ring
+
+        names = [str(name) for name in self.ring.ctx.names()]
+        sympy_ring = ring(names, ZZ, lex)[0]
+        terms = {tuple(int(e) for e in m): int(c) for m, c in self.p.to_dict().items()}
+        coefficient, factors = sympy_ring.from_dict(terms).factor_list()
+        return int(coefficient), [(self.ring.from_dict(dict(f.items())), int(e))
+                                  for f, e in factors]
 
     def div(self, other: "FlintPoly") -> tuple["FlintPoly", "FlintPoly"]:
         quotient, remainder = divmod(self.p, other.p)
