@@ -249,7 +249,7 @@ def problems(system: System, results: FirstOrder) -> list[Problem]:
         if ratios:
             ratio, i = min(ratios)
             if ratio < 1 - 1e-9:  # a ray exactly on the rim still passes
-                found.append(Problem("limits aperture", (i,), ratio * ratio < 0.5,
+                found.append(Problem("limits aperture", (i,), False,
                                      {"passing": ratio * ratio, "height": abs(heights[i]),
                                       "semi": _number(boundaries[i].clear_diameter) / 2}))
     return [p for p in found if _finite_problem(p)]
