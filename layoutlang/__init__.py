@@ -33,13 +33,26 @@ def load(path):
     """Read and interpret a script file into a Program."""
     from .interpret.interpreter import load_file
 
+    _notebook_display()
     return load_file(path)
+
+
+def _notebook_display() -> None:
+    """In a notebook, a Program shows its report: the display is registered here, by the API
+    (a front end), never by the interpreter."""
+    import sys
+
+    if "IPython" in sys.modules:
+        from .notebook import register_if_in_notebook
+
+        register_if_in_notebook()
 
 
 def loads(text: str, file: str = "<script>", base=None):
     """Interpret script text into a Program (`base` resolves `use "file"`)."""
     from .interpret.interpreter import interpret
 
+    _notebook_display()
     return interpret(parse(text, file), base=base)
 
 

@@ -2,12 +2,13 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
 
 from .engines.firstorder import FirstOrder, first_order
 from .interpret.interpreter import Expectation, Program
-from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, PERCENT, POWER, QUANTITIES
+from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, DEGREES, PERCENT, POWER, QUANTITIES
 from .quantities import RAY_QUANTITIES
 from .measure import LENGTH_UNITS, to_nanometres
 from .testing import Outcome, compare
@@ -33,7 +34,7 @@ def display_unit(kind: str, units: str) -> str:
     """The unit a quantity of this kind is shown in: lengths in the layout's units, powers in
     diopters, plain numbers without a unit."""
     return {"length": units, "power": "diopters", PERCENT: "%", ANGLE: "mrad",
-            DECIBEL: "dB"}.get(kind, "")
+            DECIBEL: "dB", DEGREES: "deg"}.get(kind, "")
 
 
 def to_display(value, kind: str, units: str):
@@ -44,6 +45,8 @@ def to_display(value, kind: str, units: str):
         return value * 100.0
     if kind == ANGLE and isinstance(value, (int, float)):
         return value * 1000.0
+    if kind == DEGREES and isinstance(value, (int, float)):
+        return math.degrees(value)
     return value
 
 

@@ -31,7 +31,7 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("file", help="a layout script (.lay)")
     run.add_argument("--json", action="store_true", help="machine-readable output")
     check = commands.add_parser("check", help="check the expectations of one or more scripts")
-    check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
+    check.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay), or directories: every .lay below them")
     check.add_argument("--json", action="store_true", help="machine-readable output")
     check.add_argument("--junit", metavar="FILE", help="also write JUnit XML to FILE")
     check.add_argument("--against", metavar="REV",
@@ -130,6 +130,28 @@ def _run(path: str, as_json: bool) -> int:
     return EXIT_OK if all(r.passed for r in checked) else EXIT_FAILED
 
 
+def scripts_in(paths: Sequence[str]) -> list[str]:
+    """The scripts named: a file as given, a directory as every .lay file below it (sorted).
+
+    Raises:
+        LayoutFileError: a directory holds no .lay file.
+    """
+    from pathlib import Path
+
+    from .errors import LayoutFileError
+
+    found: list[str] = []
+    for path in paths:
+        if Path(path).is_dir():
+            below = sorted(str(p) for p in Path(path).rglob("*.lay") if p.is_file())
+            if not below:
+                raise LayoutFileError(f"{path}: no .lay script below this directory")
+            found += below
+        else:
+            found.append(path)
+    return found
+
+
 def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
            against: str | None = None, markdown: str | None = None) -> int:
     from .reports.colour import paint, use_colour
@@ -139,6 +161,7 @@ def _check(paths: Sequence[str], as_json: bool, junit: str | None = None,
     documents = []
     outcomes = []  # for --junit
     reviews = []  # for --against: (path, review or None, summary)
+    paths = scripts_in(paths)
     for path in paths:
         try:
             program, _, checked = _evaluate(path)

@@ -1,8 +1,11 @@
 """Rich display in notebooks: a Program shows its report, first-order results a table.
 
-Jupyter calls `_repr_html_` / `_repr_latex_` on the last value of a cell. The Program's method
-(in interpreter.py) delegates here; `evaluate()` returns a `FirstOrderResults`, a FirstOrder that
-also knows the layout's units so it can show every value with its unit.
+Jupyter calls `_repr_html_` / `_repr_latex_` on the last value of a cell. A Program (a plain
+value of the interpreter, which renders nothing) gets its display from here: `register` adds
+`program_html` to IPython's HTML formatter; the API (`layoutlang.load`/`loads`) calls it when
+IPython is running, and `%load_ext layoutlang.notebook` does it by hand. `evaluate()` returns a
+`FirstOrderResults`, a FirstOrder that also knows the layout's units so it can show every value
+with its unit.
 """
 
 from __future__ import annotations
@@ -13,7 +16,36 @@ from dataclasses import dataclass
 from .engines.firstorder import FirstOrder, Unavailable
 from .quantities import QUANTITIES, REPORT_ORDER
 
-__all__ = ["FirstOrderResults", "program_html", "with_units"]
+__all__ = ["FirstOrderResults", "program_html", "with_units", "register",
+           "register_if_in_notebook", "load_ipython_extension"]
+
+
+def register(shell) -> bool:
+    """Show every Program as its report in this IPython shell; False if it has no HTML
+    formatter (a plain terminal shell)."""
+    from .interpret.interpreter import Program
+
+    formatters = getattr(getattr(shell, "display_formatter", None), "formatters", {})
+    html_formatter = formatters.get("text/html") if hasattr(formatters, "get") else None
+    if html_formatter is None:
+        return False
+    html_formatter.for_type(Program, program_html)
+    return True
+
+
+def register_if_in_notebook() -> None:
+    """`register` with the running IPython shell, if any (costs nothing outside IPython)."""
+    import sys
+
+    ipython = sys.modules.get("IPython")
+    shell = ipython.get_ipython() if ipython is not None else None
+    if shell is not None:
+        register(shell)
+
+
+def load_ipython_extension(shell) -> None:
+    """`%load_ext layoutlang.notebook`."""
+    register(shell)
 
 
 def program_html(program) -> str:

@@ -11,9 +11,11 @@ import difflib
 from dataclasses import dataclass
 
 __all__ = ["QuantityInfo", "QUANTITIES", "ALIASES", "lookup", "REPORT_ORDER", "RAY_QUANTITIES", "PERCENT",
-           "FIELD_DEFAULTS", "BEAM_QUANTITIES", "BEAM_PLACED", "ANGLE", "DECIBEL"]
+           "FIELD_DEFAULTS", "BEAM_QUANTITIES", "BEAM_PLACED", "ANGLE", "DECIBEL", "DEGREES",
+           "WAVELENGTH_PLACED"]
 
 LENGTH, POWER, NUMBER = "length", "power", "number"
+DEGREES = "degrees"  # an angle kept in radians, shown and written in degrees
 PERCENT = "percent"  # kept as a fraction, shown and written in percent
 ANGLE = "angle"  # kept in radians, shown in mrad
 DECIBEL = "decibel"  # a ratio in dB
@@ -79,7 +81,19 @@ _RAY_ROWS = [
     ("axial colour sum", LENGTH, "first-order longitudinal chromatic sum C I"),
     ("lateral colour sum", LENGTH, "first-order transverse chromatic sum C II"),
     ("petzval radius", LENGTH, "radius of the Petzval surface, + when its centre is downstream"),
+    # surfaces placed in space (engines/placed.py)
+    ("axis turn", DEGREES, "angle between the object-space and the image-space axis (the folds)"),
+    ("beam deviation", DEGREES, "angle the real axial ray turns by through the whole layout"),
+    ("prism deviation", DEGREES, "angle the real axial ray turns by through the (first) prism"),
+    ("image tilt", DEGREES, "tilt of the image plane from square to the image-space axis"),
+    ("image shift", LENGTH, "real axial ray on the image plane, from the image-space axis"),
+    ("parabasal focal length", LENGTH, "focal length about the real axial ray (y plane)"),
+    ("parabasal back focal distance", LENGTH, "last surface to the parabasal focus, along the "
+                                              "real axial ray"),
 ]
+
+#: Placement quantities that take `at wavelength W` (engines/placed.py).
+WAVELENGTH_PLACED = frozenset({"beam deviation", "prism deviation"})
 
 #: The field (fraction of the full field) a field-dependent ray quantity is taken at when the
 #: script does not say `at field ...`.

@@ -139,9 +139,11 @@ class StopSpec:
 @dataclass(frozen=True)
 class ImageSpec:
     """The image plane: at the paraxial focus (distance None) or a fixed distance after the
-    last boundary along the path."""
+    last boundary along the path; `tilt` (about x, y, z, radians) turns the plane about its
+    axis point, in the image-space axis frame (a sensor not square to the axis), or None."""
 
     distance: Number | None = None
+    tilt: tuple[Number, Number, Number] | None = None
 
 
 @dataclass(frozen=True)
@@ -209,8 +211,10 @@ class System:
 
     @property
     def is_coaxial(self) -> bool:
-        """No boundary or group is placed off the axis: the engines' coaxial path applies."""
-        return not self.groups and all(b.placement is None for b in self.boundaries)
+        """No boundary or group is placed off the axis: the engines' coaxial path applies (a
+        zero placement is no placement, so it changes nothing, bit for bit)."""
+        return (all(g.placement.is_identity for g in self.groups)
+                and all(b.placement is None or b.placement.is_identity for b in self.boundaries))
 
     def medium(self, name: str) -> Medium:
         for medium in self.media:

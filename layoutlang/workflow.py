@@ -24,7 +24,8 @@ REPORT_FORMATS = ("md", "html", "latex")
 def add_commands(commands) -> None:
     """Add `format`, `draw` and `report` to the command line's subparsers."""
     fmt = commands.add_parser("format", help="rewrite scripts in the canonical layout")
-    fmt.add_argument("files", nargs="+", metavar="FILE", help="layout scripts (.lay)")
+    fmt.add_argument("files", nargs="+", metavar="FILE",
+                     help="layout scripts (.lay), or directories: every .lay below them")
     fmt.add_argument("--check", action="store_true",
                      help="change nothing; exit 1 if a file would change")
     fmt.add_argument("--diff", action="store_true", help="print what would change, write nothing")
@@ -57,8 +58,10 @@ def run_command(args: argparse.Namespace) -> int:
 def _format(paths: list[str], check: bool, show_diff: bool) -> int:
     from .formatter import format_file
 
+    from .cli import scripts_in
+
     status = EXIT_OK
-    for path in paths:
+    for path in scripts_in(paths):
         try:
             result = format_file(path)
         except Exception as error:  # noqa: BLE001 - one file's failure never stops the next

@@ -220,3 +220,18 @@ def test_a_thousand_term_sum_is_computed_and_formatted(tmp_path, capsys) -> None
     assert main(["check", str(script)]) == 0
     assert main(["format", "--check", str(script)]) == 0
     assert "Traceback" not in capsys.readouterr().err
+
+
+def test_check_of_a_directory_checks_every_script_below_it(tmp_path, capsys) -> None:
+    (tmp_path / "deep" / "er").mkdir(parents=True)
+    for name in ("a.lay", "deep/b.lay", "deep/er/c.lay"):
+        (tmp_path / name).write_text(GOOD + "expect focal length = 50 ± 0.1\n")
+    (tmp_path / "notes.txt").write_text("not a script")
+    assert main(["check", str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    assert [line.split(":")[0] for line in out.splitlines()] == [
+        str(tmp_path / n) for n in ("a.lay", "deep/b.lay", "deep/er/c.lay")]
+    assert main(["format", "--check", str(tmp_path)]) == 0
+    (tmp_path / "empty").mkdir()
+    assert main(["check", str(tmp_path / "empty")]) == 2
+    assert "no .lay script below" in capsys.readouterr().err

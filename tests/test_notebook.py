@@ -32,8 +32,46 @@ def test_first_order_results_display_with_units() -> None:
 
 def test_program_shows_its_report() -> None:
     pytest.importorskip("matplotlib")
-    html = layoutlang.loads(SCRIPT)._repr_html_()
+    from layoutlang.notebook import program_html
+
+    html = program_html(layoutlang.loads(SCRIPT))
     assert "<h1>Relay</h1>" in html and "<svg" in html and "holds" in html
+
+
+class _Formatter:
+    def __init__(self) -> None:
+        self.shown = {}
+
+    def for_type(self, kind, function) -> None:
+        self.shown[kind] = function
+
+
+class _Shell:
+    def __init__(self) -> None:
+        self.display_formatter = type("DisplayFormatter", (), {})()
+        self.display_formatter.formatters = {"text/html": _Formatter()}
+
+
+def test_the_notebook_front_end_registers_how_a_program_shows() -> None:
+    from layoutlang.interpret.interpreter import Program
+    from layoutlang.notebook import load_ipython_extension, program_html, register
+
+    assert not hasattr(Program, "_repr_html_")  # the interpreter renders nothing
+    shell = _Shell()
+    load_ipython_extension(shell)
+    assert shell.display_formatter.formatters["text/html"].shown[Program] is program_html
+    assert register(object()) is False  # a shell without an HTML formatter
+
+
+def test_interpreting_does_not_import_the_notebook_renderer() -> None:
+    import subprocess
+    import sys
+
+    code = ("import sys, layoutlang; layoutlang.loads('start in air\\nlens a focal length 5\\n');"
+            "print('layoutlang.notebook' in sys.modules, 'layoutlang.reports.document' in "
+            "sys.modules)")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert done.stdout.split() == ["False", "False"], done.stderr
 
 
 def test_api_format_and_report(tmp_path) -> None:

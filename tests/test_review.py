@@ -354,3 +354,19 @@ def test_a_symbolic_scripts_closed_forms_and_sensitivities_are_compared(repo, ca
     lensmaker = quantity(data, "lensmaker equation")
     assert lensmaker["part"] == "closed forms" and "2*R2" in lensmaker["after"]["text"]
     assert "2*R2" not in lensmaker["before"]["text"]
+
+
+EXAMPLES = sorted((Path(__file__).parents[1] / "examples").glob("*.lay"))
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.stem)
+def test_every_example_against_itself_and_against_another(path, capsys) -> None:
+    """Nothing to report against itself; against an unrelated layout, a full review in every
+    format with no error."""
+    status, out, _ = compare(capsys, "--json", str(path), str(path))
+    data = json.loads(out)
+    assert status == 0 and data["statements"] == data["quantities"] == data["expectations"] == []
+    other = EXAMPLES[(EXAMPLES.index(path) + 1) % len(EXAMPLES)]
+    for shape in ((), ("--markdown",), ("--json",)):
+        status, out, err = compare(capsys, *shape, str(other), str(path))
+        assert status in (0, 1) and out and "error" not in err

@@ -97,6 +97,8 @@ class RayQuantities:
             if name == "petzval radius":
                 return sums.petzval_radius
             return sums.total(SEIDEL_FIELDS[name])
+        if name in _PLACED:
+            return self._placed(name, wavelength)
         a = self.analysis
         if a.unavailable is not None:
             return a.unavailable
@@ -127,6 +129,37 @@ class RayQuantities:
                 return row
             return row.real_height if name == "real image height" else row.distortion
         raise KeyError(name)
+
+
+    def _placed(self, name: str, wavelength: float | None) -> Value:
+        """Quantities of surfaces placed in space (engines/placed.py)."""
+        from . import placed
+
+        system = self.system
+        if name == "axis turn":
+            return placed.axis_turn(system)
+        if name == "image tilt":
+            found = placed.image_placement(system, self.results)
+            return found if isinstance(found, Unavailable) else found.tilt
+        if name == "image shift":
+            found = placed.image_placement(system, self.results)
+            return found if isinstance(found, Unavailable) else found.shift
+        if name.startswith("parabasal"):
+            found = placed.parabasal(system, self.results)
+            return found.focal_length_y if name == "parabasal focal length" \
+                else found.back_focal_distance
+        indices = None if wavelength is None else system.indices(wavelength)
+        if name == "beam deviation":
+            return placed.beam_deviation(system, indices, self.results)
+        prisms = [g for g in system.groups if g.name.startswith("prism ")]
+        if not prisms:
+            return Unavailable("none: the layout has no prism")
+        return placed.prism_deviation(system, prisms[0].first, prisms[0].last, indices,
+                                      self.results)
+
+
+_PLACED = frozenset({"axis turn", "beam deviation", "prism deviation", "image tilt",
+                     "image shift", "parabasal focal length", "parabasal back focal distance"})
 
 
 def _first(rows) -> Any:

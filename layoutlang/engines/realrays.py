@@ -151,6 +151,12 @@ class Geometry:
     vertex_z: tuple[Number, ...]  # z of each boundary vertex
     senses: tuple[int, ...]  # sense of travel of each space (object space first)
     stop_step: int | None  # position of the stop plane in `steps`, if any
+    # placed (non-coaxial) layouts only: (origin, rotation) of each step's local frame in the
+    # global frame, the steps with their vertex at the local origin, and the image-space axis
+    frames: tuple | None = None
+    local_steps: tuple[Step, ...] = ()
+    exit_frame: tuple | None = None
+    problem: str = ""  # why a placed layout cannot be traced, or ""
 
     def up_to_stop(self) -> tuple[Step, ...]:
         """The steps from the object side up to and including the stop plane."""
@@ -225,7 +231,28 @@ def geometry(system: System, stop_radius: Number | None = None, repeat: int = 1)
             hole_radius=_radius(boundary.hole_diameter, 0.0, repeat)))
         if stop is not None and stop.after == i and on_boundary is None:
             add_stop()
-    return Geometry(tuple(steps), tuple(vertex_z), tuple(senses), stop_step)
+    if system.is_coaxial:
+        return Geometry(tuple(steps), tuple(vertex_z), tuple(senses), stop_step)
+    return _placed(system, Geometry(tuple(steps), tuple(vertex_z), tuple(senses), stop_step))
+
+
+def _placed(system: System, geo: Geometry) -> Geometry:
+    """The same steps, each with its local frame in the global frame (engines/frames.py)."""
+    from dataclasses import replace
+
+    from .frames import layout3d
+
+    placed = layout3d(system)
+    frames = []
+    for step in geo.steps:
+        if step.boundary >= 0:
+            frames.append(placed.surfaces[step.boundary])
+        else:  # the stop plane, on the axis of its space
+            stop = system.stop
+            frames.append(placed.axis_point(stop.after + 1, float(stop.offset)))
+    local = tuple(replace(step, z=0.0) for step in geo.steps)
+    return replace(geo, frames=tuple(frames), local_steps=local, exit_frame=placed.axes[-1],
+                   problem=placed.problem)
 
 
 class Rays:
@@ -304,8 +331,16 @@ def _masked(value: Any, mask: np.ndarray):
 
 
 def trace(rays: Rays, geo: Geometry, indices: Sequence[Index],
-          steps: Sequence[Step] | None = None, chunk: int = CHUNK, workers: int = 1) -> Rays:
+          steps: Sequence[Step] | None = None, chunk: int = CHUNK, workers: int = 1,
+          coordinates: str = "path") -> Rays:
     """Trace rays through the steps, in place; returns the same `Rays`.
+
+    A coaxial layout is traced in its one global frame. A placed layout (`geo.frames`) is
+    traced step by step in each surface's local frame; the rays come back in *path*
+    coordinates — those of the image-space axis after a whole trace, of the last step's own
+    frame after a leading part (so aiming at a decentred stop aims at its real centre) —
+    shifted so that the coaxial z of that place is kept, which lets every caller read them as
+    it reads a coaxial trace; `coordinates="global"` gives the global frame instead (drawings).
 
     Blocks are independent (each writes only its own slice), so `workers` > 1 traces them on
     that many threads: numpy releases the GIL inside its array loops. The result is the same
@@ -319,12 +354,17 @@ def trace(rays: Rays, geo: Geometry, indices: Sequence[Index],
         steps: a leading part of `geo.steps` (e.g. up to the stop); all steps by default.
         chunk: rays per block; blocks that fit in cache are several times faster.
         workers: threads over the blocks (1: in this thread).
+        coordinates: "path" or "global" (placed layouts; a coaxial one has only one frame).
     """
     steps = geo.steps if steps is None else steps
     count = len(rays)
     if not steps or not count:
         return rays
     bounds = [(lo, min(lo + chunk, count)) for lo in range(0, count, chunk)]
+    if geo.frames is not None:
+        for lo, hi in bounds:
+            _trace_placed(_Block(rays, lo, hi), geo, indices, len(steps), coordinates)
+        return rays
     if workers <= 1 or len(bounds) == 1:
         for lo, hi in bounds:
             _trace_block(_Block(rays, lo, hi), steps, indices)
@@ -382,6 +422,35 @@ def _trace_block(block: _Block, steps: Sequence[Step], indices: Sequence[Index])
         z += block.share(last.z)
         after = last.space_before + (0 if last.action == _PLANE else 1)
         k /= block.share(indices[after])
+
+
+def _trace_placed(block: _Block, geo: Geometry, indices: Sequence[Index], count: int,
+                  coordinates: str) -> None:
+    """A placed layout: each step in its surface's local frame (global ↔ local around the
+    one-step `_trace_block`), per-ray status kept with the step's own number."""
+    p, k = block.data[0:3], block.data[3:6]
+    with np.errstate(invalid="ignore"):
+        for where in range(count):
+            origin, axes = geo.frames[where]
+            p -= origin[:, None]
+            p[...] = axes.T @ p
+            k[...] = axes.T @ k
+            was_ok = block.status == OK
+            _trace_block(block, geo.local_steps[where:where + 1], indices)
+            block.failed_at[was_ok & (block.status != OK)] = where
+            p[...] = axes @ p
+            p += origin[:, None]
+            k[...] = axes @ k
+        if coordinates == "path":
+            if count == len(geo.steps):
+                frame, z = geo.exit_frame, geo.vertex_z[-1]
+            else:
+                frame, z = geo.frames[count - 1], geo.steps[count - 1].z
+            origin, axes = frame
+            p -= origin[:, None]
+            p[...] = axes.T @ p
+            p[2] += z
+            k[...] = axes.T @ k
 
 
 def _surface_step(block: _Block, where: int, step: Step, n: Index, n2: Index) -> None:

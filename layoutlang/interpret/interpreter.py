@@ -26,6 +26,7 @@ from .expressions import ExpressionEvaluator, NumericBackend
 from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
 from .materialstatements import MaterialStatements
+from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
 from .buildstatements import SURFACE_QUANTITIES, BuildStatements
 from ..engines.raysettings import RaySettings
@@ -74,11 +75,8 @@ class Program:
     colour: Any = None  # materialstatements.ColourRequests: colour reports and achromats
     symbolic: Any = None  # a symbolic script's SymbolicPart (symbolic/program.py), else None
     beams: Any = None  # a beam script's BeamSettings (interpret/beamstatements.py), else None
-
-    def _repr_html_(self) -> str:  # notebooks show the whole report (layoutlang.notebook)
-        from ..notebook import program_html
-
-        return program_html(self)
+    # no display methods here: the notebook front end registers how a Program shows
+    # (layoutlang.notebook.register), so interpreting never pulls in a renderer
 
 
 def load_file(path: str | Path) -> Program:
@@ -104,7 +102,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements):
+                   BuildStatements, PlaceStatements):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -580,6 +578,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             title=self.title, units=self.units,
         )
         system = self.materials_system(system)  # dispersion, surroundings (materialstatements.py)
+        system = self.placed_system(system)  # tilts, decenters, folds, prisms (placestatements.py)
         system = self.beam_system(system)  # the beam and fibre (beamstatements.py)
         if self.stop_node is not None:
             from dataclasses import replace
@@ -709,7 +708,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements,
+                BuildStatements, PlaceStatements,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

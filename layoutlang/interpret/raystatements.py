@@ -12,7 +12,7 @@ from typing import Any
 
 from ..engines.raysettings import RayRequest, RaySettings
 from ..errors import LayoutUnitError, LayoutValueError
-from ..quantities import FIELD_DEFAULTS, PERCENT, RAY_QUANTITIES, lookup
+from ..quantities import DEGREES, FIELD_DEFAULTS, PERCENT, RAY_QUANTITIES, WAVELENGTH_PLACED, lookup
 from ..syntax import tree as t
 
 __all__ = ["RayStatements"]
@@ -167,9 +167,11 @@ class RayStatements:
                                         "distortion")
         wavelength = None
         if ref is not None:
-            if info.name not in ("rms spot radius", "largest spot radius"):
+            if info.name not in ("rms spot radius", "largest spot radius") \
+                    and info.name not in WAVELENGTH_PLACED:
                 raise LayoutValueError(f"{info.name} is taken at the primary wavelength only",
-                                       self.span(ref), hint="spot radii take 'at wavelength W'")
+                                       self.span(ref), hint="spot radii and deviations take "
+                                       "'at wavelength W'")
             wavelength, written = self._resolve_ref(ref)  # materials statements: lines, nm
             label = f"{label} at wavelength {written}"
         return info.name, fraction, wavelength, label
@@ -219,6 +221,10 @@ class RayStatements:
         elif info.kind == PERCENT:
             kind = PERCENT
             convert = limit = self._percent
+        elif info.kind == DEGREES:
+            kind = DEGREES
+            convert = lambda e: self.angle(e, "the expected angle")  # noqa: E731
+            limit = lambda e: self.angle(e, "the tolerance")  # noqa: E731
         else:
             kind = info.kind
             convert = lambda e: self.length(e, "the expected value")  # noqa: E731

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from ..testing import format_number, with_unit
+from ..testing import with_unit
 from .engine import ExpectationChange, QuantityChange, Review
 
 __all__ = ["session_lines", "summary", "text", "markdown", "markdown_document", "as_json",

@@ -11,8 +11,10 @@ bit). A `Placement` moves a boundary or a group away from that axis:
     RETURNS: a perturbation (a tolerance, a mis-mounted element): the surfaces after keep the
       axis they had before (for a group, after its last surface);
     FOLLOWS: a fold: the axis after follows the placed surface (after a tilted mirror the axis
-      is the incoming axis reflected in the mirror; after a tilted refracting surface or a
-      group, the axis turned with it).
+      is the incoming axis reflected in the mirror; after a tilted refracting surface the axis
+      ray refracted at the placed vertex — adjusted from "turned with it", because a prism face
+      or a tilted window sends the light along the refracted ray and the surfaces after must
+      stand on it; after a group, the axis moved with it). engines/frames.py has the rules.
 
 `Frame` is the result every engine reads: the vertex position in the global frame and the
 rotation from the surface's local axes to global axes (columns are the local x, y, z). The

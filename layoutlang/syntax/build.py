@@ -314,6 +314,54 @@ class _Builder(Transformer):
         quantity, op, value = items
         return t.ExpectRays(quantity, op, value, None, None, "depth of focus", pos=_pos(meta))
 
+    # --- placement (grammar/placement.lark) ------------------------------------------------
+    def place_through(self, meta, items):
+        return _ident(items[0])
+
+    def axis_word(self, meta, items):
+        return str(items[0])
+
+    def place_axis(self, meta, items):
+        return str(items[0])
+
+    def tilt(self, meta, items):
+        name, last, amount, axis, mode = items
+        return t.PlaceMove("tilt", _ident(name), last, amount, str(axis), mode, pos=_pos(meta))
+
+    def decenter(self, meta, items):
+        name, last, amount, axis, mode = items
+        return t.PlaceMove("decenter", _ident(name), last, amount, str(axis), mode,
+                           pos=_pos(meta))
+
+    def fold(self, meta, items):
+        name, angle, axis, *rest = items
+        return t.Fold(_ident(name), angle, str(axis),
+                      clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta))
+
+    def prism_thickness(self, meta, items):
+        return ("thickness", items[0])
+
+    def prism_incidence(self, meta, items):
+        return ("incidence", items[0])
+
+    def prism_clear(self, meta, items):
+        return ("clear diameter", items[0])
+
+    def prism_wedge(self, meta, items):
+        name, medium, apex, *rest = items
+        options = _options(rest)
+        return t.Prism("wedge", _ident(name), _ident(medium), apex=apex,
+                       thickness=options.get("thickness"), incidence=options.get("incidence"),
+                       clear_diameter=options.get("clear diameter"), pos=_pos(meta))
+
+    def prism_right_angle(self, meta, items):
+        name, medium, size = items
+        return t.Prism("right angle", _ident(name), _ident(medium), size=size, pos=_pos(meta))
+
+    def image_tilt(self, meta, items):
+        angle, axis = items
+        return t.ImageTilt(angle, str(axis), pos=_pos(meta))
+
     # --- real materials and several wavelengths (grammar/materials.lark) -------------------
     def pair(self, meta, items):
         return (items[0], items[1])

@@ -17,6 +17,7 @@ __all__ = [
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
     "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
+    "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
 ]
@@ -522,6 +523,55 @@ class ExpectSensitivity(Statement):
     op: str
     value: Expr
     tolerance: Tolerance | None = None
+
+
+# --- placement (grammar/placement.lark) ------------------------------------------------------
+
+
+@node
+class PlaceMove(Statement):
+    """`tilt NAME [through NAME] by ANGLE about AXIS` or `decenter ... by LENGTH along AXIS`,
+    with an optional `, axis follows | returns` (None: not said, the axis returns)."""
+
+    kind: str  # 'tilt' | 'decenter'
+    first: Ident
+    last: Ident | None
+    amount: Expr
+    axis: str  # 'x' | 'y' | 'z'
+    mode: str | None = None  # 'follows' | 'returns' | None
+
+
+@node
+class Fold(Statement):
+    """`fold [NAME] at ANGLE about AXIS[, clear diameter D]`: a flat mirror the axis follows."""
+
+    name: Ident | None
+    angle: Expr
+    axis: str
+    clear_diameter: Expr | None = None
+
+
+@node
+class Prism(Statement):
+    """`prism NAME in MEDIUM, apex A[, thickness T][, incidence I][, clear diameter D]` or
+    `prism NAME in MEDIUM, right angle, size S`."""
+
+    kind: str  # 'wedge' | 'right angle'
+    name: Ident
+    medium: Ident
+    apex: Expr | None = None
+    thickness: Expr | None = None
+    incidence: Expr | None = None
+    clear_diameter: Expr | None = None
+    size: Expr | None = None
+
+
+@node
+class ImageTilt(Statement):
+    """`tilt image plane by ANGLE about AXIS`."""
+
+    angle: Expr
+    axis: str
 
 
 # --- laser beams and fibres (grammar/beams.lark) ----------------------------------------------

@@ -272,6 +272,35 @@ def _Solve(node: t.Solve) -> str:
     return f"solve {_names(node.unknowns)} so that {conditions}"
 
 
+# placement (grammar/placement.lark)
+def _PlaceMove(node: t.PlaceMove) -> str:
+    through = "" if node.last is None else f" through {node.last.text}"
+    word = "about" if node.kind == "tilt" else "along"
+    text = (f"{node.kind} {node.first.text}{through} by {expression_text(node.amount)} "
+            f"{word} {node.axis}")
+    return text if node.mode is None else f"{text}, axis {node.mode}"
+
+
+def _Fold(node: t.Fold) -> str:
+    name = "" if node.name is None else f" {node.name.text}"
+    text = f"fold{name} at {expression_text(node.angle)} about {node.axis}"
+    if node.clear_diameter is not None:
+        text += f", clear diameter {expression_text(node.clear_diameter)}"
+    return text
+
+
+def _Prism(node: t.Prism) -> str:
+    head = f"prism {node.name.text} in {node.medium.text}"
+    if node.kind == "right angle":
+        return f"{head}, right angle, size {expression_text(node.size)}"
+    text = f"{head}, apex {expression_text(node.apex)}"
+    for word, value in (("thickness", node.thickness), ("incidence", node.incidence),
+                        ("clear diameter", node.clear_diameter)):
+        if value is not None:
+            text += f", {word} {expression_text(value)}"
+    return text
+
+
 # laser beams and fibres (grammar/beams.lark)
 def _beam_option(option: t.BeamOption) -> str:
     kind = option.kind
@@ -314,6 +343,11 @@ _RULES: dict[str, Callable] = {
     "FocusTolerance": lambda n: f"focus tolerance {expression_text(n.value)}",
     "ReportRays": lambda n: f"report {n.what}",
     "ExpectRays": _ExpectRays,
+    # placement
+    "PlaceMove": _PlaceMove,
+    "Fold": _Fold,
+    "Prism": _Prism,
+    "ImageTilt": lambda n: f"tilt image plane by {expression_text(n.angle)} about {n.axis}",
     "ReportAtField": lambda n: f"report {n.quantity.text} at field {expression_text(n.field)}"
     + ("" if n.wavelength is None else f" at wavelength {_wavelength_ref(n.wavelength)}"),
     # materials and wavelengths
