@@ -314,9 +314,7 @@ def _format_text(text: str, file: str) -> str:
 def format_file(path: str | Path) -> FormatResult:
     """Format one script file without writing it."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as error:
-        raise LayoutFileError(f"cannot read {path}: {getattr(error, 'strerror', None) or error}") \
-            from None
+    from .guard import read_script
+
+    text = read_script(path)
     return FormatResult(str(path), text, format_text(text, str(path)))

@@ -25,7 +25,8 @@ from typing import Any, Callable, TypeVar
 from .errors import LayoutError, LayoutValueError, Span
 
 __all__ = [
-    "LARGEST", "SMALLEST", "NOT_FINITE_REASON", "LayoutInternalError", "admissible",
+    "LARGEST", "SMALLEST", "NOT_FINITE_REASON", "MAX_SCRIPT_BYTES", "MAX_STATEMENTS",
+    "MAX_SURFACES", "read_script", "LayoutInternalError", "admissible",
     "is_finite", "finite_or_unavailable", "json_safe", "guarded", "unexpected_error",
     "quiet_numeric_warnings",
 ]
@@ -35,6 +36,11 @@ __all__ = [
 LARGEST = 1e15
 SMALLEST = 1e-15
 
+#: Size limits, so no input reads or grows without end (README, "Size limits").
+MAX_SCRIPT_BYTES = 2_000_000
+MAX_STATEMENTS = 20_000
+MAX_SURFACES = 5_000
+
 NOT_FINITE_REASON = "cannot be computed: not a finite number"
 
 F = TypeVar("F", bound=Callable[..., Any])
@@ -42,6 +48,29 @@ F = TypeVar("F", bound=Callable[..., Any])
 
 class LayoutInternalError(LayoutError, RuntimeError):
     """Something went wrong inside layoutlang itself (a bug): said in words, exit status 2."""
+
+
+def read_script(path: str | Path) -> str:
+    """A script's text, read at most MAX_SCRIPT_BYTES (+1) bytes far: `/dev/zero` or a runaway
+    generated file is an error, not a hang.
+
+    Raises:
+        LayoutFileError: the file cannot be read, is not UTF-8 text, or is too large.
+    """
+    from .errors import LayoutFileError
+
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read(MAX_SCRIPT_BYTES + 1)
+    except OSError as error:
+        raise LayoutFileError(f"cannot read {path}: {error.strerror or error}") from None
+    if len(data) > MAX_SCRIPT_BYTES:
+        raise LayoutFileError(f"{path} is larger than {MAX_SCRIPT_BYTES:,} bytes, the largest "
+                              "script layoutlang reads", hint="split it with 'use \"file\"'")
+    try:
+        return data.decode("utf-8")
+    except UnicodeDecodeError as error:
+        raise LayoutFileError(f"cannot read {path}: {error}") from None
 
 
 def admissible(value: Any) -> str | None:

@@ -235,3 +235,33 @@ def test_check_of_a_directory_checks_every_script_below_it(tmp_path, capsys) -> 
     (tmp_path / "empty").mkdir()
     assert main(["check", str(tmp_path / "empty")]) == 2
     assert "no .lay script below" in capsys.readouterr().err
+
+
+# --- size limits ----------------------------------------------------------------------------
+
+def test_an_endless_file_is_refused_not_read_forever(capsys) -> None:
+    assert main(["check", "/dev/zero"]) == 2
+    err = capsys.readouterr().err
+    assert "larger than 2,000,000 bytes" in err and "Traceback" not in err
+
+
+def test_too_many_statements_is_an_error_at_the_first_one_beyond(tmp_path) -> None:
+    from layoutlang.guard import MAX_STATEMENTS
+
+    text = "".join(f"let x{i} = {i}\n" for i in range(MAX_STATEMENTS + 1))
+    with pytest.raises(LayoutValueError) as caught:
+        loads(text, "t.lay")
+    assert caught.value.line == MAX_STATEMENTS + 1 and "at most 20,000 statements" in str(
+        caught.value)
+
+
+def test_too_many_surfaces_is_an_error_at_the_first_one_beyond() -> None:
+    from layoutlang.guard import MAX_SURFACES
+
+    text = "start in air\n"
+    text += "".join(f"lens l{i} focal length 1000\ngap 1\n" for i in range(MAX_SURFACES))
+    text += "lens last focal length 1000\n"
+    with pytest.raises(LayoutValueError) as caught:
+        loads(text, "t.lay")
+    assert "at most 5,000 surfaces" in caught.value.message
+    assert caught.value.line == 2 + 2 * MAX_SURFACES

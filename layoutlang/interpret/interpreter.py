@@ -15,7 +15,7 @@ from typing import Any
 
 from ..errors import LayoutFileError, LayoutNameError, LayoutUnitError
 from ..errors import LayoutError, LayoutValueError, Span
-from ..guard import as_arithmetic_error, guarded
+from ..guard import MAX_SURFACES, as_arithmetic_error, guarded
 from ..measure import LENGTH_UNITS, Measure
 from ..quantities import LENGTH, NUMBER, POWER, lookup, suggestion
 from ..syntax import tree as t
@@ -81,11 +81,10 @@ class Program:
 
 def load_file(path: str | Path) -> Program:
     """Read, parse and interpret a script file."""
+    from ..guard import read_script
+
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as error:
-        raise LayoutFileError(f"cannot read {path}: {getattr(error, 'strerror', None) or error}") from None
+    text = read_script(path)
     return interpret(parse(text, str(path)), base=path.parent)
 
 
@@ -406,6 +405,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
         self.remember_boundary(node)
+        if len(self.boundaries) >= MAX_SURFACES:
+            raise LayoutValueError(f"a layout has at most {MAX_SURFACES:,} surfaces",
+                                   self.span(node), hint="this limit keeps every report fast")
         self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
         self.current_medium = after
 

@@ -111,10 +111,9 @@ class Workspace:
         """
         if not path.exists():
             return cls((), path)
-        try:
-            text = path.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as error:
-            raise LayoutFileError(f"cannot read {path}: {error}") from None
+        from ..guard import read_script
+
+        text = read_script(path)
         usable, notes = _parseable(text, str(path))
         script = parse(usable, str(path))
         workspace = cls(script.statements, path, source=usable,

@@ -524,9 +524,11 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
             zs.append(float(start.z[0]))
             ys.append(float(start.y[0]))
         lost = None
-        rays = start
-        for k in boundary_steps:
-            rays = realrays.trace(start.copy(), geo, indices, geo.steps[: k + 1])
+        rays = start.copy()
+        done = 0  # steps traced so far: each boundary continues from the last (linear, not
+        for k in boundary_steps:  # a trace from the start per boundary)
+            rays = realrays.trace(rays, geo, indices, geo.steps[done: k + 1])
+            done = k + 1
             if rays.status[0] in realrays.LOST or \
                     not math.isfinite(float(rays.y[0])):
                 lost = f"an exact {role} ray is {realrays.STATUS_WORDS[int(rays.status[0])]} at " \

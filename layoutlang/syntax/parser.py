@@ -160,8 +160,17 @@ def parse(text: str, file: str = "<script>") -> tree.Script:
     Raises:
         LayoutSyntaxError: with file:line:column, a caret and what was expected.
     """
+    from ..guard import MAX_SCRIPT_BYTES, MAX_STATEMENTS
+
     text = without_bom(text)
+    if len(text) > MAX_SCRIPT_BYTES:
+        from ..errors import LayoutFileError
+
+        raise LayoutFileError(f"{file} is longer than {MAX_SCRIPT_BYTES:,} characters, the "
+                              "longest script layoutlang reads")
     source = text if text.endswith("\n") else text + "\n"
+    if source.count("\n") > MAX_STATEMENTS and _statement_lines(source) > MAX_STATEMENTS:
+        raise _too_many_statements(source, file, MAX_STATEMENTS)
     try:
         parse_tree = parser().parse(source)
     except GluedKeyword as glued:
@@ -169,6 +178,25 @@ def parse(text: str, file: str = "<script>") -> tree.Script:
     except UnexpectedInput as error:
         raise _syntax_error(error, source, file) from None
     return build_script(parse_tree, file, text)
+
+
+def _statement_lines(source: str) -> int:
+    """Lines that hold something other than a comment (an upper bound of the statements)."""
+    return sum(1 for line in source.split("\n") if line.strip() and not line.lstrip().startswith("#"))
+
+
+def _too_many_statements(source: str, file: str, limit: int) -> LayoutSyntaxError:
+    from ..errors import LayoutValueError
+
+    count, number = 0, 0
+    for number, line in enumerate(source.split("\n"), 1):
+        if line.strip() and not line.lstrip().startswith("#"):
+            count += 1
+            if count > limit:
+                break
+    return LayoutValueError(f"a script has at most {limit:,} statements; this is one more",
+                            Span(file, number, 1, len(line) + 1, line),
+                            hint="split the script with 'use \"file\"'")
 
 
 def without_bom(text: str) -> str:
