@@ -115,3 +115,16 @@ def test_placements_write_back_as_they_read() -> None:
                     "tilt image plane by 2 deg about x\n")
     statements = parse(text, "t.lay").statements
     assert parse(unparse(statements), "t.lay").statements == statements
+
+
+def test_a_tilted_image_plane_is_where_the_spot_is_taken() -> None:
+    from layoutlang.engines.rayquantities import ray_quantities
+
+    text = _BASE.replace("object at infinity", "object at infinity, field angle 3 deg") + \
+        "stop at a, diameter 4\nimage at focus\n"
+    square, tilted = loads(text), loads(text + "tilt image plane by 20 deg about x\n")
+    a = ray_quantities(square.system, square.rays).value("rms spot radius", 1.0)
+    b = ray_quantities(tilted.system, tilted.rays).value("rms spot radius", 1.0)
+    assert abs(b - a) > 1e-3  # the spot is taken on the tilted plane, not the square one
+    assert math.degrees(ray_quantities(tilted.system, tilted.rays).value("image tilt")) == \
+        pytest.approx(20.0)

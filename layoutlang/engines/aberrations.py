@@ -168,6 +168,24 @@ def _to_plane(rays: Rays, z: float) -> tuple[np.ndarray, np.ndarray]:
         return rays.x + t * rays.kx, rays.y + t * rays.ky
 
 
+def _on_image(s: RaySetup, rays: Rays) -> tuple[np.ndarray, np.ndarray]:
+    """Where rays meet the image plane, in its own x and y: the plane square to the axis, or
+    turned by `tilt image plane` about its axis point (engines/frames.rotation)."""
+    tilt = s.system.image.tilt
+    if tilt is None:
+        return _to_plane(rays, s.image_z)
+    from .frames import rotation
+
+    axes = rotation(tilt)
+    normal = axes[:, 2]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        dz = s.image_z - rays.z
+        t = (-rays.x * normal[0] - rays.y * normal[1] + dz * normal[2]) / \
+            (rays.kx * normal[0] + rays.ky * normal[1] + rays.kz * normal[2])
+        hit = np.array([rays.x + t * rays.kx, rays.y + t * rays.ky, rays.z + t * rays.kz - s.image_z])
+        return axes[:, 0] @ hit, axes[:, 1] @ hit
+
+
 def _lost_words(rays: Rays, geo: Geometry, mask: np.ndarray | None = None) -> str:
     """'3 outside the clear diameter at back; 1 missed the surface front' or ''."""
     status, where = rays.status, rays.failed_at
@@ -289,7 +307,7 @@ def chief(s: RaySetup, fields: Sequence[float]) -> list[ChiefRow]:
     rows = []
     for value in fields:
         rays = launch(s, value, np.zeros(1), np.zeros(1))
-        x, y = _to_plane(rays, s.image_z)
+        x, y = _on_image(s, rays)
         para = paraxial_chief_height(s, value)
         lost = _lost_words(rays, s.geo)
         if rays.status[0] in realrays.LOST or not np.isfinite(y[0]):
@@ -322,7 +340,7 @@ def spot(s: RaySetup, field: float, points: int = 17, z: float | None = None,
     (`rays`: that grid already launched at this field, to trace it only once)."""
     if rays is None:
         rays = launch(s, field, *pupil_grid(points))
-    x, y = _to_plane(rays, s.image_z if z is None else z)
+    x, y = _on_image(s, rays) if z is None else _to_plane(rays, z)
     used = rays.ok & np.isfinite(x) & np.isfinite(y)
     lost = _lost_words(rays, s.geo)
     if not used.any():
