@@ -6,7 +6,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from .engines.firstorder import FirstOrder, first_order
+from .engines.firstorder import FirstOrder, Unavailable, first_order
 from .interpret.interpreter import Expectation, Program
 from .quantities import ANGLE, BEAM_QUANTITIES, DECIBEL, DEGREES, PERCENT, POWER, QUANTITIES
 from .quantities import RAY_QUANTITIES
@@ -66,6 +66,20 @@ def beam_label(name: str, place) -> str:
 
 
 @guarded
+def _at_infinity(results: FirstOrder, units: str) -> Outcome:
+    """Whether the paraxial output is collimated (`expect image at infinity`)."""
+    from .testing import with_unit
+
+    value = results["image distance"]
+    if isinstance(value, Unavailable) and "infinity" in str(value):
+        return Outcome(True, value, f"image is {value}, expected at infinity")
+    if isinstance(value, Unavailable):
+        return Outcome(False, value, f"image is {value}; expected at infinity")
+    side = "after" if value >= 0 else "before"
+    return Outcome(False, value, f"image lies {with_unit(abs(value), units)} {side} the last "
+                                 "boundary, expected at infinity (collimated output)")
+
+
 def evaluate_program(program: Program) -> tuple[FirstOrder, list[CheckResult]]:
     """The first-order results of a program and the outcome of each expectation, as every
     front end reports them (a symbolic script at its nominal values, which must all be given)."""
@@ -87,6 +101,9 @@ def check_program(program: Program, results: FirstOrder | None = None) -> list[C
     checked = []
     for expectation in program.expectations:
         kind = expectation.kind
+        if expectation.op == "at infinity":  # expect image at infinity
+            checked.append(CheckResult(expectation, _at_infinity(results, units), "image", units))
+            continue
         reading = read_quantity(program, results, expectation.quantity, field=expectation.field,
                                 wavelength=expectation.wavelength, scale=expectation.scale,
                                 request=getattr(expectation, "request", None), kind=kind,

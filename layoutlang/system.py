@@ -140,10 +140,13 @@ class StopSpec:
 class ImageSpec:
     """The image plane: at the paraxial focus (distance None) or a fixed distance after the
     last boundary along the path; `tilt` (about x, y, z, radians) turns the plane about its
-    axis point, in the image-space axis frame (a sensor not square to the axis), or None."""
+    axis point, in the image-space axis frame (a sensor not square to the axis), or None;
+    `at_infinity` when the script states the output is collimated (`image at infinity`,
+    checked against the paraxial image)."""
 
     distance: Number | None = None
     tilt: tuple[Number, Number, Number] | None = None
+    at_infinity: bool = False
 
 
 @dataclass(frozen=True)

@@ -34,6 +34,9 @@ __all__ = [
     "DEFAULT_WAVELENGTH_NM", "wavelength_sets",
 ]
 
+#: Pupil fractions are scaled by this before aiming (see `launch`).
+RIM_INSIDE = 1 - 1e-10
+
 DEFAULT_WAVELENGTH_NM = 587.6  # helium d line, used when the script names no wavelength
 
 Value = Any  # float | Unavailable
@@ -158,6 +161,9 @@ def aim(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray, iterations: i
 def launch(s: RaySetup, field: float, px: np.ndarray, py: np.ndarray) -> Rays:
     """Rays from the object point at `field` through the stop at (px, py)·stop radius, aimed
     at the real stop, traced to the last boundary."""
+    # a ray asked for exactly on the rim is aimed a hair inside it (1e-10 of the radius), so
+    # the rounding left by the aim never counts a rim ray as vignetted
+    px, py = np.asarray(px, dtype=float) * RIM_INSIDE, np.asarray(py, dtype=float) * RIM_INSIDE
     ex, ey = aim(s, field, px, py)
     return realrays.trace(_object_rays(s, field, ex, ey), s.geo, s.indices)
 

@@ -19,10 +19,16 @@ from . import paraxial
 from .paraxial import Step, TRANSFER, formulas
 from ..guard import guarded
 
-__all__ = ["Unavailable", "FirstOrder", "first_order", "RELATIVE_ZERO"]
+__all__ = ["Unavailable", "FirstOrder", "first_order", "RELATIVE_ZERO", "AFOCAL_RELATIVE"]
 
 #: A denominator smaller than this fraction of its terms counts as zero (rounding noise).
 RELATIVE_ZERO = 1e-12
+
+#: A layout counts as afocal when its power is below this fraction of the sum of its surfaces'
+#: powers: a telescope whose spacing is written to 4 decimals keeps a rounding remainder of
+#: ~1e-8 of its parts (a "focal length" of 1e8 mm), which is no focus anyone can use. A real
+#: weak lens has a power of the order of its surfaces' powers, far above this.
+AFOCAL_RELATIVE = 1e-6
 
 #: Larger magnitudes count as overflowed: unit conversions for display (a power per nm shown in
 #: diopters is 1e9 times larger) must still stay finite.
@@ -132,7 +138,7 @@ class _Evaluation:
         phis = [s.value for s in self.steps if s.kind is not TRANSFER]
         self.power_scale = sum(abs(p) for p in phis)
         a, b, c, d = self.abcd
-        self.afocal = _is_zero(c, self.power_scale) or self.power_scale == 0
+        self.afocal = abs(c) <= AFOCAL_RELATIVE * self.power_scale or self.power_scale == 0
 
     def run(self) -> FirstOrder:
         self._cardinal_points()

@@ -462,7 +462,36 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.distance is not None:
             self._fix_units(node)
             distance = self.length(node.distance, "the image distance")
-        self.image, self.image_node = ImageSpec(distance), node
+        self.image, self.image_node = ImageSpec(distance, at_infinity=node.at_infinity), node
+        self.image_context = (self.file, self.lines)
+
+    def statement_ExpectAtInfinity(self, node: t.ExpectAtInfinity) -> None:
+        """expect image at infinity"""
+        if node.quantity.text != "image":
+            raise LayoutValueError(
+                f"only the image can be expected at infinity, not the {node.quantity.text}",
+                self.span(node.quantity), expected="'expect image at infinity'")
+        self.expect_nodes.append((node, (self.file, self.lines)))
+
+    def check_image_at_infinity(self, program: Program) -> None:
+        """`image at infinity` states the output is collimated: refuse it when it is not."""
+        if not program.system.image.at_infinity or program.symbolic is not None:
+            return
+        from ..engines.firstorder import Unavailable, first_order
+
+        value = first_order(program.system)["image distance"]
+        if isinstance(value, Unavailable):
+            return
+        from ..testing import format_number
+
+        self.file, self.lines = self.image_context
+        side = "after" if value >= 0 else "before"
+        raise LayoutValueError(
+            f"the image is not at infinity: the paraxial image lies "
+            f"{format_number(abs(value))} {program.system.units} {side} the last boundary",
+            self.span(self.image_node), expected="a layout whose output is collimated",
+            hint="place the object at the front focal point (or make the layout afocal), "
+                 "or write 'image at focus'")
 
     def statement_Wavelengths(self, node: t.Wavelengths) -> None:
         """wavelengths W [primary], W, ..."""
@@ -594,12 +623,14 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         expectations = tuple(expectations)
         ray_requests = self.ray_requests()
         self.refuse_unused_ray_settings(expectations, ray_requests)
-        return self.check_buildable(self.finish_symbolic(Program(
+        program = self.check_buildable(self.finish_symbolic(Program(
             self.script.file, system, expectations, tuple(self.reports),
             self.beam_hazards(self.hazards), dict(self.names), rays=rays,
             ray_reports=self.ray_reports(), ray_requests=ray_requests,
             colour=self.colour_requests(system), warnings=self.material_warnings(),
             beams=self.beam_settings(system), surface_requests=self.surface_reports(system))))
+        self.check_image_at_infinity(program)
+        return program
 
     def build_stop(self, node: t.Stop, system: System) -> StopSpec:
         try:
@@ -643,6 +674,10 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         return StopSpec(index - 1, room - offset, node.size_kind, size, node.anchor.text)
 
     def expectation(self, node: t.Expect) -> Expectation:
+        if isinstance(node, t.ExpectAtInfinity):
+            span = self.span(node)
+            return Expectation("image distance", LENGTH, "at infinity", 0.0, None, False, span,
+                               span.line_text.strip(), label="image")
         beam = self.beam_expectation(node)  # beam quantities (beamstatements.py)
         if beam is not None:
             return beam

@@ -156,6 +156,21 @@ def _where(value: float, vertex: str, units: str, point: str = "") -> str:
     return f"{lead}{_length(abs(value), units)} {side} {vertex}"
 
 
+def afocal_words(magnification: float) -> str:
+    """An afocal layout's angular magnification as the trade states it: a beam expander by
+    how many times wider the beam leaves, a telescope by how many times larger angles get."""
+    size = abs(magnification)
+    turn = "inverted" if magnification < 0 else "upright"
+    if abs(size - 1) < 5e-7:
+        return f"unit magnification, {turn}"
+    if size < 1:
+        times = format_number(1 / size, 4)
+        return (f"a {times}× beam expander: the beam leaves {times} times wider and "
+                f"{times} times less divergent; {turn}")
+    times = format_number(size, 4)
+    return f"a {times}× telescope: angles leave {times} times larger, the beam narrower; {turn}"
+
+
 def describe_value(name: str, value, units: str) -> str:
     """A quantity's value with its unit, or the reason it has none; a position also says
     from where it is measured (`11.147 mm after the first vertex`)."""
@@ -175,6 +190,8 @@ def describe_value(name: str, value, units: str) -> str:
     if name == "image distance":
         text += "  (real image, downstream)" if value >= 0 else \
             f"  (virtual image, {_length(-value, units)} upstream of the last boundary)"
+    elif name == "afocal angular magnification" and value != 0:
+        text += "  (" + afocal_words(value) + ")"
     elif name == "magnification" and value != 0:
         text += "  (inverted)" if value < 0 else "  (upright)"
     return text

@@ -172,6 +172,12 @@ class _Builder(Transformer):
     def image_at_focus(self, meta, items):
         return t.Image(None, pos=_pos(meta))
 
+    def image_at_infinity(self, meta, items):
+        return t.Image(None, True, pos=_pos(meta))
+
+    def expect_at_infinity(self, meta, items):
+        return t.ExpectAtInfinity(items[0], pos=_pos(meta))
+
     def image_after(self, meta, items):
         return t.Image(items[0], pos=_pos(meta))
 

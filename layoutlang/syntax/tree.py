@@ -16,7 +16,7 @@ __all__ = [
     "ObjectAtInfinity", "ObjectBefore", "Shape", "BoundaryStatement",
     "Gap", "Stop", "Image", "Wavelength", "Wavelengths", "Quantity", "Tolerance",
     "Expect", "Report", "Hazard", "Use", "Script",
-    "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
+    "ExpectAtInfinity", "Sample", "FocusTolerance", "ReportRays", "ReportAtField", "ExpectRays",
     "PlaceMove", "Fold", "Prism", "ImageTilt",
     "SessionCommand", "Change", "Insert", "Remove", "Rename", "Undo", "Redo", "Show", "Save",
     "Help", "Leave",
@@ -202,6 +202,14 @@ class Stop(Statement):
 @node
 class Image(Statement):
     distance: Expr | None = None  # None: at the paraxial focus
+    at_infinity: bool = False  # `image at infinity`: the output is stated to be collimated
+
+
+@node
+class ExpectAtInfinity(Statement):
+    """`expect image at infinity`: the paraxial output is collimated."""
+
+    quantity: Quantity
 
 
 @node

@@ -331,8 +331,9 @@ _RULES: dict[str, Callable] = {
     "BoundaryStatement": _BoundaryStatement,
     "Gap": lambda n: f"gap {expression_text(n.length)}",
     "Stop": _Stop,
-    "Image": lambda n: "image at focus" if n.distance is None
-    else f"image {expression_text(n.distance)} after",
+    "Image": lambda n: "image at infinity" if n.at_infinity else "image at focus"
+    if n.distance is None else f"image {expression_text(n.distance)} after",
+    "ExpectAtInfinity": lambda n: f"expect {n.quantity.text} at infinity",
     "Wavelengths": _Wavelengths,
     "Expect": _Expect,
     "Report": _Report,
