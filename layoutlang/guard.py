@@ -25,8 +25,8 @@ from typing import Any, Callable, TypeVar
 from .errors import LayoutError, LayoutValueError, Span
 
 __all__ = [
-    "LARGEST", "SMALLEST", "NOT_FINITE_REASON", "MAX_SCRIPT_BYTES", "MAX_STATEMENTS",
-    "MAX_SURFACES", "read_script", "LayoutInternalError", "admissible",
+    "LARGEST", "SMALLEST", "SMALLEST_COEFFICIENT", "NOT_FINITE_REASON", "MAX_SCRIPT_BYTES",
+    "MAX_STATEMENTS", "MAX_SURFACES", "read_script", "LayoutInternalError", "admissible",
     "is_finite", "finite_or_unavailable", "json_safe", "guarded", "unexpected_error",
     "quiet_numeric_warnings",
 ]
@@ -35,6 +35,10 @@ __all__ = [
 #: of them, which stays far inside the range of a double (about 1e308).
 LARGEST = 1e15
 SMALLEST = 1e-15
+#: Aspheric coefficients (r⁴ … r²⁰, in layout units) are small by nature — an r¹⁰ term of a
+#: telescope mirror in mm is about 1e-20 — and only ever multiply a power of r: they may go
+#: down to this magnitude (the interpreter asks for it where a coefficient is written).
+SMALLEST_COEFFICIENT = 1e-200
 
 #: Size limits, so no input reads or grows without end (README, "Size limits").
 MAX_SCRIPT_BYTES = 2_000_000
@@ -73,7 +77,7 @@ def read_script(path: str | Path) -> str:
         raise LayoutFileError(f"cannot read {path}: {error}") from None
 
 
-def admissible(value: Any) -> str | None:
+def admissible(value: Any, smallest: float = SMALLEST) -> str | None:
     """Why a number written in (or computed by) a script cannot be used, or None if it can.
 
     Works for floats and for exact sympy numbers (which may exceed a double's range); a value
@@ -86,8 +90,8 @@ def admissible(value: Any) -> str | None:
         return "this number is not defined (it is not a number)"
     if magnitude > LARGEST:
         return f"this number is too large (layoutlang works with magnitudes up to {LARGEST:g})"
-    if 0 < magnitude < SMALLEST:
-        return (f"this number is too small (layoutlang works with magnitudes from {SMALLEST:g}, "
+    if 0 < magnitude < smallest:
+        return (f"this number is too small (layoutlang works with magnitudes from {smallest:g}, "
                 "or exactly 0)")
     return None
 

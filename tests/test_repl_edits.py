@@ -44,11 +44,23 @@ def edit(command: str, script: str = START) -> tuple[str, str]:
     ("change object distance to 300", "object 250 before", "object 300 before"),
     ("change object height to 5", "height 4", "height 5"),
     ("change stop f-number to 4", "diameter 18", "f-number 4"),
+    ("change front conic constant to -1.02", "into crown\n", "into crown, conic constant -1.02\n"),
+    ("change front r6 coefficient to 1e-8", "into crown\n", "into crown, r6 coefficient 1e-8\n"),
+    ("change back hole diameter to 2", "-150.4 into air", "-150.4 into air, hole diameter 2"),
 ])
 def test_change_replaces_just_that_property(command: str, old: str, new: str) -> None:
     text, said = edit(command)
     assert text == START.replace(old, new, 1)
     assert said
+
+
+def test_changing_a_conic_constant_replaces_it_in_place_and_a_lens_has_none() -> None:
+    script = START.replace("into crown\n", "into crown, conic constant -1, clear diameter 20\n")
+    text, said = edit("change front conic constant to -1.02", script)
+    assert "into crown, clear diameter 20, conic constant -1.02\n" in text
+    assert said == "front now has conic constant -1.02"
+    with pytest.raises(LayoutValueError, match="thin lens"):
+        edit("change field conic constant to -1")
 
 
 def test_a_gap_between_touching_boundaries_is_written_next_to_them() -> None:

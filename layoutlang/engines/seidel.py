@@ -14,6 +14,12 @@ refraction n'u' - nu = -y c (n' - n), which is the paraxial engine's nu' = nu - 
 concentric with the axial image point). The Petzval sum is P = Σ c (n' - n)/(n n') and the
 Petzval surface has radius -1/(n_k P) in image space (a positive thin lens in air: -n f).
 
+A conic or asphere adds the contributions of its r⁴ deformation b beyond the vertex sphere
+(b = κ c³/8 + A4, `Profile.fourth_order`), with Δn = n' - n (Welford 1986, ch. 8, the aspheric
+surface terms; also H. H. Hopkins 1950, Wave Theory of Aberrations):
+
+    δS_I = 8 b Δn y⁴   δS_II = 8 b Δn y³ ȳ   δS_III = 8 b Δn y² ȳ²   δS_IV = 0   δS_V = 8 b Δn y ȳ³
+
 Mirrors use the usual trick (index changes sign after reflection). An ideal `lens` images
 every point perfectly (see `realrays`), so it contributes nothing. δn is the index at the
 blue end minus that at the red end (F and C when listed, else the shortest and longest listed
@@ -95,6 +101,8 @@ def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: 
     for i, boundary in enumerate(system.boundaries):
         n, n2 = signed[i], signed[i + 1]
         c = float(boundary.curvature)
+        b = 0.0 if boundary.is_spherical or boundary.kind == IDEAL else \
+            float(boundary.profile.fourth_order())
         if boundary.kind == IDEAL:
             phi = thin_lens_power(n, senses[i], float(boundary.power))
             nu2, nu_bar2 = nu - y * phi, nu_bar - y_bar * phi
@@ -108,14 +116,15 @@ def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: 
             d_1_n = 1 / n2 - 1 / n
             d_1_n2 = 1 / (n2 * n2) - 1 / (n * n)
             d_dn_n = signed_dn[i + 1] / n2 - signed_dn[i] / n
+            e = 8.0 * b * (n2 - n)  # the aspheric factor 8 b Δn
             rows.append(SurfaceSums(
                 boundary.name,
-                spherical=-a * a * y * d_u_n,
-                coma=-a * a_bar * y * d_u_n,
-                astigmatism=-a_bar * a_bar * y * d_u_n,
+                spherical=-a * a * y * d_u_n + e * y ** 4,
+                coma=-a * a_bar * y * d_u_n + e * y ** 3 * y_bar,
+                astigmatism=-a_bar * a_bar * y * d_u_n + e * y * y * y_bar * y_bar,
                 field_curvature=-lagrange * lagrange * c * d_1_n,
                 distortion=-a_bar ** 3 * y * d_1_n2 + a_bar * y_bar * c * d_1_n * (
-                    a_bar * y + lagrange),
+                    a_bar * y + lagrange) + e * y * y_bar ** 3,
                 axial_colour=a * y * d_dn_n,
                 lateral_colour=a_bar * y * d_dn_n,
                 petzval=-c * d_1_n,

@@ -93,6 +93,22 @@ class ExpressionEvaluator:
         self.span = span
         self.backend = backend
         self._depth = 0
+        self.smallest = SMALLEST  # raised for aspheric coefficients (`small_numbers`)
+
+    def small_numbers(self, smallest: float):
+        """A context in which magnitudes down to `smallest` are admitted (aspheric
+        coefficients: guard.SMALLEST_COEFFICIENT)."""
+        from contextlib import contextmanager
+
+        @contextmanager
+        def allowing():
+            before, self.smallest = self.smallest, smallest
+            try:
+                yield
+            finally:
+                self.smallest = before
+
+        return allowing()
 
     def evaluate(self, node: t.Expr) -> Measure:
         """The value of an expression; the whole expression's value must pass the numeric
@@ -103,10 +119,10 @@ class ExpressionEvaluator:
         finally:
             self._depth -= 1
         if self._depth == 0:
-            why = admissible(result.value)
+            why = admissible(result.value, self.smallest)
             if why:
                 raise LayoutValueError(why, self.span(node),
-                                       expected=f"a magnitude between {SMALLEST:g} and "
+                                       expected=f"a magnitude between {self.smallest:g} and "
                                                 f"{LARGEST:g}, or 0")
         return result
 
@@ -132,10 +148,10 @@ class ExpressionEvaluator:
                 f"this number has more than {MAX_NUMBER_CHARACTERS} characters",
                 self.span(node), expected="a number such as 12.5 or 1.5e-3")
         value = self.backend.number(node.text)
-        why = admissible(value)
+        why = admissible(value, self.smallest)
         if why:
             raise LayoutValueError(why, self.span(node),
-                                   expected=f"a magnitude between {SMALLEST:g} and {LARGEST:g}, "
+                                   expected=f"a magnitude between {self.smallest:g} and {LARGEST:g}, "
                                             "or 0")
         if node.unit is None:
             return Measure(value)

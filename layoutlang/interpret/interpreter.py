@@ -25,6 +25,7 @@ from ..system import StopSpec, System, Wavelength
 from .expressions import ExpressionEvaluator, NumericBackend
 from .beamstatements import BeamStatements
 from .raystatements import RayStatements, is_ray_quantity
+from .surfaceoptions import SurfaceOptions
 from .materialstatements import MaterialStatements
 from .placestatements import PlaceStatements
 from .symbolstatements import SymbolicStatements
@@ -101,7 +102,7 @@ def check_statements(script: t.Script, base: Path | None = None) -> None:
 
 
 class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                   BuildStatements, PlaceStatements):
+                   BuildStatements, PlaceStatements, SurfaceOptions):
     def __init__(self, script: t.Script, base: Path) -> None:
         self.script = script
         self.base = base
@@ -365,6 +366,9 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
     def statement_BoundaryStatement(self, node: t.BoundaryStatement) -> None:
         """surface [NAME] radius R | curvature C | flat [into MEDIUM][, clear diameter D]
         mirror [NAME] radius R | curvature C | flat[, clear diameter D]
+        (surface and mirror also take the options of surfaces.lark: conic constant K,
+        r4 coefficient A, q-type a0 A, q-type normalisation radius R, obscuration diameter D,
+        hole diameter D)
         lens [NAME] focal length F | power P[, clear diameter D]"""
         if self.current_medium is None:
             raise LayoutValueError(
@@ -404,11 +408,12 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
         if node.clear_diameter is not None:
             clear = self.positive(self.length(node.clear_diameter, "a clear diameter"),
                                   node.clear_diameter, "a clear diameter")
+        shape = self.surface_fields(node, curvature, clear)
         self.remember_boundary(node)
         if len(self.boundaries) >= MAX_SURFACES:
             raise LayoutValueError(f"a layout has at most {MAX_SURFACES:,} surfaces",
                                    self.span(node), hint="this limit keeps every report fast")
-        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear))
+        self.boundaries.append(Boundary(name, curvature, after, kind, power, clear, **shape))
         self.current_medium = after
 
     def curvature(self, shape: t.Shape) -> Any:
@@ -745,7 +750,7 @@ def _literal(node: t.Expr) -> str:
 _HANDLERS = {
     name[len("statement_"):]: method
     for cls in (RayStatements, SymbolicStatements, MaterialStatements, BeamStatements,
-                BuildStatements, PlaceStatements,
+                BuildStatements, PlaceStatements, SurfaceOptions,
                 _Interpreter)
     for name, method in vars(cls).items()
     if name.startswith("statement_")

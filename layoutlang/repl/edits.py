@@ -135,6 +135,15 @@ def _change(statements: Statements, node: t.Change, text: str) -> tuple[Statemen
     if prop == "clear diameter":
         new = replace(boundary, clear_diameter=node.value)
         return _with(statements, i, new), f"{name} now has clear diameter {_expr(node.value)}"
+    if prop in ("conic constant", "obscuration diameter", "hole diameter") or \
+            prop.endswith(" coefficient"):
+        if boundary.kind == "lens":
+            raise LayoutValueError(f"{name} is a thin lens: it has no surface to give a {prop}",
+                                   _span(node, text))
+        options = dict(boundary.surface_options)
+        options[prop] = node.value
+        new = replace(boundary, surface_options=tuple(options.items()))
+        return _with(statements, i, new), f"{name} now has {prop} {_expr(node.value)}"
     if prop == "medium":
         if boundary.kind != "surface":
             raise LayoutValueError(f"only a surface leads into another medium; {name} is a "

@@ -81,6 +81,27 @@ def setting_json(system) -> dict:
     }
 
 
+def _surface_json(b) -> dict:
+    """Shape and aperture beyond the sphere and the clear diameter (only what is given)."""
+    found: dict = {}
+    if b.conic != 0:
+        found["conic_constant"] = round12(b.conic)
+    if b.even_terms:
+        found["even_coefficients"] = {f"r{2 * j + 4}": round12(a)
+                                      for j, a in enumerate(b.even_terms)}
+    if b.q_terms:
+        found["q_type_coefficients"] = [round12(a) for a in b.q_terms]
+        found["q_type_normalisation_radius"] = round12(b.q_radius)
+    if b.obscuration_diameter is not None:
+        found["obscuration_diameter"] = round12(b.obscuration_diameter)
+    if b.hole_diameter is not None:
+        found["hole_diameter"] = round12(b.hole_diameter)
+    ratio = b.aperture.obscuration_ratio
+    if ratio is not None:
+        found["obscuration_ratio"] = {"linear": round12(ratio), "area": round12(ratio * ratio)}
+    return found
+
+
 @guarded
 def program_json(program: Program, results: FirstOrder, checked: list[CheckResult]) -> dict:
     system = program.system
@@ -98,6 +119,7 @@ def program_json(program: Program, results: FirstOrder, checked: list[CheckResul
             "medium_after": b.medium_after,
             "gap_after": round12(system.gaps[i]) if i < len(system.gaps) else None,
             "clear_diameter": None if b.clear_diameter is None else round12(b.clear_diameter),
+            **_surface_json(b),
         } for i, b in enumerate(system.boundaries)],
         "setting": setting_json(system),
         "first_order": {name: _quantity(name, results[name], units) for name in REPORT_ORDER},

@@ -73,6 +73,11 @@ def layout_rows(system: System) -> list[list[str]]:
         else:
             shape = "flat" if boundary.curvature == 0 else \
                 f"radius {_length(1 / boundary.curvature, units)}"
+            form = conic_name(boundary.conic)
+            if form != "sphere" and boundary.curvature != 0:
+                shape += f", {form}"
+            if boundary.even_terms or boundary.q_terms:
+                shape += ", aspheric"
             if boundary.kind == MIRROR:
                 shape = "mirror, " + shape
         gap = _length(system.gaps[i], units) if i < len(system.gaps) else "-"
@@ -83,10 +88,53 @@ def layout_rows(system: System) -> list[list[str]]:
 
 
 def layout_table(system: System) -> list[str]:
-    """The boundaries as an aligned text table, after the starting medium."""
+    """The boundaries as an aligned text table, after the starting medium, then the shapes
+    and apertures beyond the sphere and the clear diameter (if any)."""
     start = format_number(system.indices()[0])
     lines = [f"  light starts in {system.start_medium} (index {start})"]
-    return lines + aligned([LAYOUT_HEADINGS] + layout_rows(system))
+    return lines + aligned([LAYOUT_HEADINGS] + layout_rows(system)) + surface_lines(system)
+
+
+def conic_name(conic) -> str:
+    """The conic's name from its constant κ (the trade's names: ISO 10110-12)."""
+    k = float(conic)
+    if k == 0:
+        return "sphere"
+    if k == -1:
+        return "paraboloid"
+    if k < -1:
+        return "hyperboloid"
+    return "prolate ellipsoid" if k < 0 else "oblate ellipsoid"
+
+
+def surface_lines(system: System) -> list[str]:
+    """Conic constants, aspheric coefficients, obscurations and holes in words, with the
+    obscuration ratio (linear and by area); nothing for a layout of plain spheres."""
+    units = system.units
+    lines: list[str] = []
+    for boundary in system.boundaries:
+        parts = []
+        if boundary.conic != 0:
+            parts.append(f"conic constant {format_number(boundary.conic)}")
+        for j, a in enumerate(boundary.even_terms):
+            if a != 0:
+                parts.append(f"r{2 * j + 4} coefficient {format_number(a)}")
+        if boundary.q_terms:
+            terms = ", ".join(f"a{m} {format_number(a)}" for m, a in enumerate(boundary.q_terms))
+            parts.append(f"Q-type terms {terms} over normalisation radius "
+                         f"{_length(boundary.q_radius, units)}")
+        for label, value in (("obscuration diameter", boundary.obscuration_diameter),
+                             ("hole diameter", boundary.hole_diameter)):
+            if value is not None:
+                parts.append(f"{label} {_length(value, units)}")
+        ratio = boundary.aperture.obscuration_ratio
+        if ratio is not None:
+            parts.append(f"obscuration ratio {format_number(ratio, 4)} across, "
+                         f"{format_number(ratio * ratio, 4)} by area")
+        if parts:
+            lines.append(f"  {boundary.name}: " + "; ".join(parts))
+    return (["  surfaces beyond the sphere and apertures beyond the clear diameter"] + [
+        "  " + line for line in lines]) if lines else []
 
 
 def setting_lines(system: System) -> list[str]:

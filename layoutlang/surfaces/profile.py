@@ -132,6 +132,21 @@ class Profile:
             s = s + self._qcon(rho)[1]
         return s
 
+    def fourth_order(self) -> Number:
+        """The r⁴ coefficient of the sag beyond the vertex sphere's c³/8: κ c³/8 + A4, plus the
+        Q-type terms' r⁴ part Σ a_m Q_m(0) / r_norm⁴ with Q_m(0) = P_m^(0,4)(-1) =
+        (-1)^m C(m + 4, 4) (A&S 1964, 22.4.1). It is all the third-order (Seidel) sums see
+        of a conic or an asphere. Works over floats and sympy."""
+        c = self.curvature
+        value = self.conic * c * c * c / 8
+        if self.even_terms:
+            value = value + self.even_terms[0]
+        if self.q_terms:
+            scale = self.q_radius ** 4
+            for m, a in enumerate(self.q_terms):
+                value = value + a * (-1) ** m * math.comb(m + 4, 4) / scale
+        return value
+
     def sag_at_height(self, height: Number) -> Number:
         return self.sag(height * height)
 

@@ -35,6 +35,12 @@ class OptionTwice(Exception):
         self.key, self.value = key, value
 
 
+def _surface_options(items) -> tuple:
+    """The shape and aperture options of surfaces.lark, (key, value) in written order."""
+    return tuple((key, value) for key, value in _options(items).items()
+                 if key != "clear diameter")
+
+
 def _options(items) -> dict:
     """Collect trailing `, option value` pairs given as (key, value) tuples; an option given
     twice is refused rather than one of them silently winning."""
@@ -118,6 +124,25 @@ class _Builder(Transformer):
     def clear_diameter(self, meta, items):
         return ("clear diameter", items[0])
 
+    # surfaces.lark: shape and aperture options, kept in written order as (key, value)
+    def conic_constant(self, meta, items):
+        return ("conic constant", items[0])
+
+    def even_coefficient(self, meta, items):
+        return (f"{items[0]} coefficient", items[1])
+
+    def q_type_coefficient(self, meta, items):
+        return (f"q-type {items[0]}", items[1])
+
+    def q_type_radius(self, meta, items):
+        return ("q-type normalisation radius", items[0])
+
+    def obscuration_diameter(self, meta, items):
+        return ("obscuration diameter", items[0])
+
+    def hole_diameter(self, meta, items):
+        return ("hole diameter", items[0])
+
     def lens_focal_length(self, meta, items):
         return ("focal length", items[0])
 
@@ -128,21 +153,24 @@ class _Builder(Transformer):
         name, shape, into, *rest = items
         return t.BoundaryStatement(
             "surface", _ident(name), shape=shape, into=_ident(into),
-            clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta),
+            clear_diameter=_options(rest).get("clear diameter"),
+            surface_options=_surface_options(rest), pos=_pos(meta),
         )
 
     def mirror(self, meta, items):
         name, shape, *rest = items
         return t.BoundaryStatement(
             "mirror", _ident(name), shape=shape,
-            clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta),
+            clear_diameter=_options(rest).get("clear diameter"),
+            surface_options=_surface_options(rest), pos=_pos(meta),
         )
 
     def lens(self, meta, items):
         name, (kind, strength), *rest = items
         return t.BoundaryStatement(
             "lens", _ident(name), strength_kind=kind, strength=strength,
-            clear_diameter=_options(rest).get("clear diameter"), pos=_pos(meta),
+            clear_diameter=_options(rest).get("clear diameter"),
+            surface_options=_surface_options(rest), pos=_pos(meta),
         )
 
     def gap(self, meta, items):

@@ -8,6 +8,8 @@ grammar would have accepted and offers a "did you mean" for a misspelt keyword.
 
 from __future__ import annotations
 
+import re
+
 import difflib
 from functools import cache
 
@@ -216,6 +218,23 @@ def _glued_error(glued: GluedKeyword, source: str, file: str) -> LayoutSyntaxErr
         hint=f"write '{keyword} {following}'")
 
 
+SURFACE_OPTION_ALONE = (
+    "a conic constant, aspheric coefficients, an obscuration or a hole belong to a surface or "
+    "mirror: write them after its shape, e.g. 'surface front radius 12 into glass, conic "
+    "constant -0.6, r4 coefficient 2e-5'")
+_SURFACE_OPTION_WORDS = re.compile(r"r(4|6|8|10|12|14|16|18|20)|conic|obscuration|hole|q-type")
+
+
+def _surface_option_alone(word: str, column: int, text: str) -> bool:
+    """A line that starts with a surface option (grammar/surfaces.lark) and no surface."""
+    starts = len(text) - len(text.lstrip()) + 1
+    rest = text.split("#")[0].split()
+    if column != starts or len(rest) < 2 or not _SURFACE_OPTION_WORDS.fullmatch(rest[0]):
+        return False
+    return rest[1] in ("coefficient", "constant", "diameter", "normalisation") or \
+        (rest[0] == "q-type" and re.fullmatch(r"a\d+", rest[1]) is not None)
+
+
 def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSyntaxError:
     from .mistakes import label_for  # only needed on the error path
 
@@ -245,7 +264,9 @@ def _syntax_error(error: UnexpectedInput, source: str, file: str) -> LayoutSynta
     else:
         message, width = f"{describe_terminal(token.type)} is not expected here", len(word)
     label = label_for(error, source)
-    hint = _did_you_mean(token, expected)
+    if _surface_option_alone(word, column, lines[line - 1] if 0 < line <= len(lines) else ""):
+        label = SURFACE_OPTION_ALONE
+    hint = None if label == SURFACE_OPTION_ALONE else _did_you_mean(token, expected)
     return LayoutSyntaxError(
         label or message, _span(file, lines, line, column, width),
         expected=None if label else _expected_words(expected), hint=hint,

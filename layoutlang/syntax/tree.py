@@ -181,6 +181,10 @@ class BoundaryStatement(Statement):
     strength_kind: str | None = None  # lens only: 'focal length' | 'power'
     strength: Expr | None = None
     clear_diameter: Expr | None = None
+    # surfaces.lark: ('conic constant', expr), ('r4 coefficient', expr), ('q-type a0', expr),
+    # ('q-type normalisation radius', expr), ('obscuration diameter', expr),
+    # ('hole diameter', expr), in written order
+    surface_options: tuple[tuple[str, Expr], ...] = ()
 
 
 @node

@@ -102,6 +102,8 @@ def _BoundaryStatement(node: t.BoundaryStatement) -> str:
     text = " ".join(parts)
     if node.clear_diameter is not None:
         text += f", clear diameter {expression_text(node.clear_diameter)}"
+    for key, value in node.surface_options:
+        text += f", {key} {expression_text(value)}"
     return text
 
 
