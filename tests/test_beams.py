@@ -294,3 +294,26 @@ def test_extreme_beams_are_said_in_words_never_inf_or_nan(beam: str) -> None:
     assert not re.search(r"\b(nan|inf)\b", text), text
     dumps(program_json(program, results, checked))  # allow_nan=False: raises on nan/inf
     assert not checked[0].passed and "out of range" in checked[0].outcome.message
+
+
+def test_solve_and_sensitivity_of_the_waist_position() -> None:
+    from layoutlang.symbolic.sensitivity import sensitivity_at_nominal
+    from layoutlang.symbolic.solve import solve_request
+
+    program = load("symbols f positive\nnominal f = 100\nunits mm\n"
+                   "beam waist radius 0.3, waist 150 before, wavelength 1064 nm\nstart in air\n"
+                   "lens focusing focal length f\nsolve f so that waist position = 120\n")
+    solution = solve_request(program.symbolic, program.symbolic.solves[0])
+    roots = sorted(float(s[program.symbolic.symbols[0]]) for s in solution.general)
+    for f in roots:  # each focal length puts the waist 120 mm after the lens
+        check = load(f"units mm\nbeam waist radius 0.3, waist 150 before, wavelength 1064 nm\n"
+                     f"start in air\nlens focal length {f!r}\n")
+        assert beam_value(check.system, "waist position") == pytest.approx(120, rel=1e-9)
+    slope = sensitivity_at_nominal(program.symbolic, "waist position",
+                                   program.symbolic.symbols[0])
+    step = 1e-4
+    ahead, behind = (beam_value(load(f"units mm\nbeam waist radius 0.3, waist 150 before, "
+                                     f"wavelength 1064 nm\nstart in air\nlens focal length "
+                                     f"{100 + d}\n").system, "waist position")
+                     for d in (step, -step))
+    assert slope == pytest.approx((ahead - behind) / (2 * step), rel=1e-6)

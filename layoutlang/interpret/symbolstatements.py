@@ -94,12 +94,13 @@ class SymbolicStatements:
             state["nominal"][symbol] = value
 
     def _derivable(self, quantity: t.Quantity, allow_equation: bool = False) -> str:
-        from ..symbolic.layout import BEAM_DERIVABLE, DERIVABLE
+        from ..symbolic.layout import BEAM_DERIVABLE, DERIVABLE, ROOTED
 
         if allow_equation and quantity.text in ("conjugate equation", "lensmaker equation"):
             return quantity.text
         info = self.quantity(quantity)
-        if allow_equation and info.name in BEAM_DERIVABLE:  # `derive` only
+        # beam quantities: `derive` takes all; `solve` and sensitivities the rational ones
+        if info.name in BEAM_DERIVABLE and (allow_equation or info.name not in ROOTED):
             if self._beams()["beam node"] is None:
                 raise LayoutValueError(f"{info.name} needs a beam", self.span(quantity),
                                        hint="declare it with 'beam waist radius W, waist D "
