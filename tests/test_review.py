@@ -370,3 +370,43 @@ def test_every_example_against_itself_and_against_another(path, capsys) -> None:
     for shape in ((), ("--markdown",), ("--json",)):
         status, out, err = compare(capsys, *shape, str(other), str(path))
         assert status in (0, 1) and out and "error" not in err
+
+
+TOLERANCED = """\
+# the relay with its tolerances, kept in a second file (invented)
+use "relay.lay"
+tolerance radius of front ± 0.4%, normal 3 sigma
+tolerance gap after front ± 0.05
+monte carlo 400 samples, seed 7
+expect yield > 90%
+report tolerances
+"""
+
+
+def test_a_script_using_another_file_is_compared_with_its_tolerances(repo, capsys) -> None:
+    """A script whose surfaces come from a used file is complete, and a tolerance change is
+    said as a statement in its own words, with the tolerance analysis that moved."""
+    (repo / "optics" / "toleranced.lay").write_text(TOLERANCED, encoding="utf-8")
+    git(repo, "add", ".")
+    git(repo, "commit", "-q", "-m", "tolerances")
+    (repo / "optics" / "toleranced.lay").write_text(
+        TOLERANCED.replace("± 0.4%", "± 1.5%"), encoding="utf-8")
+    status, data = compare_json(capsys, "HEAD:optics/toleranced.lay", "optics/toleranced.lay")
+    assert status in (0, 1)
+    assert data["before_incomplete"] is None and data["after_incomplete"] is None
+    (changed,) = changes(data, "changed")
+    assert changed["what"] == "tolerance radius of front"
+    labels = {q["quantity"] for q in data["quantities"]}
+    assert any("sensitivity on radius of front" in label for label in labels)
+    assert "tolerances monte carlo yield" in labels
+
+
+def test_a_script_using_a_file_of_media_only_is_still_being_built(repo, capsys) -> None:
+    """No surface in the script nor in the file it uses: not complete, said in words."""
+    (repo / "optics" / "media.lay").write_text("units mm\nmedium crown index 1.5\n",
+                                              encoding="utf-8")
+    (repo / "optics" / "start.lay").write_text('use "media.lay"\nstart in air\n',
+                                              encoding="utf-8")
+    status, data = compare_json(capsys, "optics/start.lay", "optics/start.lay")
+    assert status == 0
+    assert "no surface" in data["before_incomplete"]

@@ -40,6 +40,9 @@ __all__ = ["Expectation", "Program", "interpret", "check_statements", "load_file
 #: Media every script knows without defining them.
 PREDEFINED_MEDIA = {"air": 1.0, "vacuum": 1.0}
 
+#: What interpreting a layout with no boundary at all says (the session calls it unfinished).
+NO_SURFACES = "the layout has no surfaces"
+
 
 @dataclass(frozen=True)
 class Expectation:
@@ -603,7 +606,7 @@ class _Interpreter(RayStatements, SymbolicStatements, MaterialStatements, BeamSt
 
     def finish(self) -> Program:
         if not self.boundaries:
-            raise LayoutValueError("the layout has no surfaces", Span(self.file, 1, 1, 2,
+            raise LayoutValueError(NO_SURFACES, Span(self.file, 1, 1, 2,
                                    self.lines[0] if self.lines else ""),
                                    hint="add at least one 'surface', 'mirror' or 'lens'")
         if self.pending_gap is not None:

@@ -143,7 +143,8 @@ _COVERED = frozenset({"file", "title", "units", "sign_convention", "cautions", "
                       "requested_rays"})
 
 #: Keys whose numbers say which row a list item is (not quantities themselves).
-_ROW_KEYS = ("name", "field", "wavelength_nm", "wavelength", "pupil", "frequency", "sample")
+_ROW_KEYS = ("name", "field", "wavelength_nm", "wavelength", "pupil", "frequency", "sample",
+             "on", "quantity")
 
 _SUFFIX_UNITS = {"_percent": "%", "_nm": "nm", "_um": "µm", "_mm": "mm", "_deg": "deg"}
 
@@ -167,7 +168,7 @@ def _row_label(item: Any, index: int) -> str:
             if key in item and isinstance(item[key], (str, int, float)) \
                     and not isinstance(item[key], bool):
                 shown = item[key] if isinstance(item[key], str) else format_number(item[key])
-                return f"{_words(key)} {shown}"
+                return shown if key == "quantity" else f"{_words(key)} {shown}"
     return f"#{index + 1}"
 
 

@@ -13,6 +13,7 @@ from functools import cached_property
 from pathlib import Path
 
 from ..checks import CheckResult, evaluate_program
+from ..errors import LayoutError
 from ..engines.firstorder import FirstOrder
 from ..interpret import interpreter
 from ..interpret.interpreter import Program
@@ -71,10 +72,22 @@ def snapshot_of(script: t.Script, base: Path | None = None) -> Snapshot:
     """
     reason = incomplete_reason(script.statements)
     if reason is None:
-        program = interpreter.interpret(script, base=base)
-        results, checked = evaluate_program(program)
-        return Snapshot(tuple(script.statements), program, results, tuple(checked))
+        return _evaluated(script, base)
+    if any(isinstance(s, t.Use) and s.is_file for s in script.statements):
+        # its surfaces may come from the file it uses: only interpreting it can tell
+        try:
+            return _evaluated(script, base)
+        except LayoutError as error:
+            if error.message != interpreter.NO_SURFACES:
+                raise
+            # no surface in the used file either: still being built
     # Still being built: run every statement so a wrong one is caught now, but skip the
     # whole-layout checks that only make sense once it is complete.
     interpreter.check_statements(script, base)
     return Snapshot(tuple(script.statements), incomplete=reason)
+
+
+def _evaluated(script: t.Script, base: Path | None) -> Snapshot:
+    program = interpreter.interpret(script, base=base)
+    results, checked = evaluate_program(program)
+    return Snapshot(tuple(script.statements), program, results, tuple(checked))

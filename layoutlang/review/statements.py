@@ -67,6 +67,18 @@ def _name(statement: t.Statement) -> str | None:
     return ident.text if isinstance(ident, t.Ident) else None
 
 
+def _leading_words(text: str, name: str | None) -> str:
+    """What a statement is about, in its own words: its text up to the name it names
+    ('tolerance radius of front'), else its words before the first number or sign."""
+    text = " ".join(text.split("#", 1)[0].split())
+    if name is not None:
+        found = re.search(rf"(?<![\w]){re.escape(name)}(?![\w])", text)
+        if found:
+            return text[: found.end()]
+    found = re.match(r"[^\d±+\-=<>\"]*", text)
+    return found.group(0).strip(" ,") or text
+
+
 def expectation_key(text: str) -> str:
     """An expectation's quantity with its qualifiers, from its text (comment and spacing
     ignored): what two revisions' expectations are matched by."""
@@ -106,12 +118,16 @@ def _items(statements: Sequence[t.Statement], names: dict[str, str] | None = Non
             key, what, family = (cls, text), text, cls
         elif cls == "Hazard":
             key, what, family = (cls, statement.kind.text), f"hazard {statement.kind.text}", cls
-        else:
-            family = _FAMILY.get(cls, cls)
+        elif cls in _FAMILY:
+            family = _FAMILY[cls]
             if name is not None:
                 key, what = (family, name), f"{family} {name}"
             else:
                 key, what = (family,), family
+        else:  # a kind added later: matched by its leading words (and name), said in them
+            family = cls
+            what = _leading_words(unparse_statement(statement), name)
+            key = (family, what)
         seen[key] += 1
         if seen[key] > 1:  # a second statement of the same thing: matched in order
             key = key + (seen[key],)
