@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from typing import Any
 
 import numpy as np
 
@@ -63,9 +64,16 @@ class Profile:
     sense_in: int  # the sense of travel of the light arriving at it
     from_clear_diameter: bool
     power: float = 0.0
+    #: a placed layout (placed_section.py): the face as drawn (u, v), the unit direction
+    #: behind a mirror in the drawing, and the vertex's v; `z` is then the vertex's u
+    outline: tuple[tuple[float, ...], tuple[float, ...]] | None = None
+    back: tuple[float, float] | None = None
+    vertex_v: float = 0.0
 
     def points(self, samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
         """(z, y) along the profile from -semi_aperture to +semi_aperture."""
+        if self.outline is not None:
+            return np.array(self.outline[0]), np.array(self.outline[1])
         y = np.linspace(-self.semi_aperture, self.semi_aperture, samples)
         return self.z + sag(self.curvature, y), y
 
@@ -83,10 +91,13 @@ class Element:
     second: int
     medium: str
     edge: float  # the semi-height of its rim
+    polygon: tuple[tuple[float, ...], tuple[float, ...]] | None = None  # placed: as drawn
 
     def outline(self, profiles: list[Profile], samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
         """A closed outline: down the first face, up the second, with flat rims where one
         face is smaller than the rim."""
+        if self.polygon is not None:
+            return np.array(self.polygon[0]), np.array(self.polygon[1])
         y = np.linspace(-self.edge, self.edge, samples)
         a, b = profiles[self.first], profiles[self.second]
         za = np.array([a.z_at(v) for v in y])
@@ -154,9 +165,13 @@ class CrossSection:
     #: the field fractions of the drawn bundles (the legend names them)
     fields: tuple[float, ...] = ()
     beam: BeamEnvelope | None = None  # a layout with a Gaussian beam
+    placed: Any = None  # placed_section.PlacedView: the folded path as drawn
 
     def extent(self) -> tuple[float, float, float]:
         """(z min, z max, largest |y|) of everything drawn."""
+        if self.placed is not None:
+            u0, u1, v0, v1 = self.placed.bounds
+            return u0, u1, max(abs(v0), abs(v1))
         zs = [p.z for p in self.profiles]
         ys = [p.semi_aperture for p in self.profiles]
         for ray in self.rays:
@@ -259,7 +274,14 @@ def cross_section(system: System, results: FirstOrder | None = None,
     range of floating point are left out with a note, never drawn as inf or NaN."""
     try:
         with np.errstate(all="ignore"):
-            section = _cross_section(system, results, exact)
+            results = results or first_order(system)
+            if system.is_coaxial:
+                section = _cross_section(system, results, exact)
+            else:  # the folded path: the coaxial section moved into place
+                from .placed_section import placed_section
+
+                section = placed_section(system, _cross_section(system, results, False),
+                                         results, exact)
     except LayoutError:
         raise
     except (ArithmeticError, ValueError) as error:
