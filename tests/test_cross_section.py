@@ -320,3 +320,59 @@ image at focus
     assert section.notes == ["no rays are drawn: the layout has no stop and the first boundary "
                              "no clear diameter"]
     assert section.rays == []
+
+
+def test_a_paraboloid_is_drawn_with_its_own_sag() -> None:
+    # A paraboloid of vertex radius R has sag r²/(2R) at every height (common practice: the
+    # conic of ISO 10110-12 with κ = -1); its sphere would sit at R - sqrt(R² - r²).
+    section = _section("""
+object at infinity
+start in air
+mirror main radius -200, conic constant -1, clear diameter 120
+image at focus
+""")
+    profile = section.profiles[0]
+    z, y = profile.points()
+    assert np.allclose(z - profile.z, -y ** 2 / 400)
+    assert profile.z_at(60.0) - profile.z == pytest.approx(-9.0)
+    sphere = 200 - math.sqrt(200 ** 2 - 60 ** 2)
+    assert abs(profile.z_at(60.0) - profile.z + sphere) > 0.1
+
+
+def test_an_ellipsoid_reaches_past_its_sphere_and_a_hole_leaves_a_gap() -> None:
+    # A prolate ellipsoid z = c r²/(1 + sqrt(1 - (1 + κ) c² r²)) exists to r = 1/(c sqrt(1 + κ))
+    # (ISO 10110-12 sag formula; geometry): with R = 100, κ = -0.5 that is 141.4, past the
+    # vertex sphere's 100, so a clear diameter of 240 is drawn whole.
+    section = _section("""
+object at infinity
+start in air
+mirror main radius -100, conic constant -0.5, clear diameter 240, obscuration diameter 40, hole diameter 20
+image at focus
+""")
+    profile = section.profiles[0]
+    assert profile.semi_aperture == pytest.approx(120.0)
+    rho = 120.0 ** 2
+    expected = -rho / 100 / (1 + math.sqrt(1 - 0.5 * rho / 100 ** 2))
+    assert profile.z_at(120.0) - profile.z == pytest.approx(expected)
+    assert any("hole of 20 mm" in note and "obscuration of 40 mm" in note
+               for note in section.notes)
+    z, y = profile.points()
+    gap = np.isnan(y)
+    assert gap.sum() == 1 and np.isnan(z[gap]).all()
+    assert np.nanmin(np.abs(y)) == pytest.approx(10.0)
+    band_z, band_y = profile.obscuration_points()
+    assert np.nanmin(np.abs(band_y)) == pytest.approx(10.0)
+    assert np.nanmax(np.abs(band_y)) == pytest.approx(20.0)
+
+
+def test_rays_blocked_by_an_obscuration_end_on_the_surface() -> None:
+    from layoutlang.engines.firstorder import first_order as fo
+
+    system = loads(open("examples/two_mirror_telescope.lay").read()).system
+    section = cross_section(system, fo(system), exact=True)
+    blocked = [note for note in section.notes if "blocked by the central obscuration" in note]
+    assert blocked and all("at primary" in note for note in blocked)
+    primary = section.profiles[0]
+    for ray in section.rays:
+        if ray.pupil == 0 and ray.field > 0:  # the centre of an off-axis bundle: blocked
+            assert ray.z[-1] == pytest.approx(primary.z_at(ray.y[-1]), abs=1e-6)

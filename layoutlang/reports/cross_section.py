@@ -43,18 +43,36 @@ _MEETING = 0.1
 _CLOSE_TO_BUNDLES = 1.6
 
 
-def sag(curvature: float, height: np.ndarray) -> np.ndarray:
-    """The sag of a sphere of this curvature at these heights (0 for a plane)."""
+def sag(curvature: float, height: np.ndarray, shape: Any = None) -> np.ndarray:
+    """The sag at these heights: of `shape` (a `surfaces.Profile`: conic, asphere) when given,
+    else of a sphere of this curvature (0 for a plane). Beyond where the surface exists (a
+    sphere past its hemisphere, an ellipsoid past its rim) the sag of the rim is given."""
     height = np.asarray(height, dtype=float)
+    if shape is not None and not shape.is_sphere:
+        limit = shape.domain_radius()
+        rho = np.minimum(height * height, limit * limit) if math.isfinite(limit) else height ** 2
+        with np.errstate(invalid="ignore", over="ignore"):
+            return np.asarray(shape.sag(rho), dtype=float)
     if curvature == 0:
         return np.zeros_like(height)
     root = np.sqrt(np.clip(1 - (curvature * height) ** 2, 0, None))
     return curvature * height ** 2 / (1 + root)
 
 
+def reach_of(boundary: Any) -> float:
+    """How far from the axis a boundary can be drawn: just inside its sphere's hemisphere or
+    its conic's rim (inf for a plane, a paraboloid, a hyperboloid)."""
+    if boundary.kind == IDEAL:
+        return math.inf
+    limit = boundary.profile.domain_radius()
+    return 0.999 * limit if math.isfinite(limit) else math.inf
+
+
 @dataclass(frozen=True)
 class Profile:
-    """One boundary as drawn: its vertex, curvature and the semi-aperture it is drawn to."""
+    """One boundary as drawn: its vertex, curvature and the semi-aperture it is drawn to, its
+    true shape (`shape`, a `surfaces.Profile`, None for a sphere of `curvature`), and the
+    semi-diameters of a central hole and a central obscuration (0 for none)."""
 
     name: str
     kind: str
@@ -64,23 +82,50 @@ class Profile:
     sense_in: int  # the sense of travel of the light arriving at it
     from_clear_diameter: bool
     power: float = 0.0
+    shape: Any = None
+    hole: float = 0.0
+    obscuration: float = 0.0
     #: a placed layout (placed_section.py): the face as drawn (u, v), the unit direction
     #: behind a mirror in the drawing, and the vertex's v; `z` is then the vertex's u
     outline: tuple[tuple[float, ...], tuple[float, ...]] | None = None
     back: tuple[float, float] | None = None
     vertex_v: float = 0.0
 
+    def sag(self, height: np.ndarray) -> np.ndarray:
+        return sag(self.curvature, height, self.shape)
+
     def points(self, samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
-        """(z, y) along the profile from -semi_aperture to +semi_aperture."""
+        """(z, y) along the profile from -semi_aperture to +semi_aperture; a hole leaves a gap
+        (NaN, which a plotted line skips) between -hole and +hole."""
         if self.outline is not None:
             return np.array(self.outline[0]), np.array(self.outline[1])
+        if 0 < self.hole < self.semi_aperture:
+            side = np.linspace(self.hole, self.semi_aperture, max(samples // 2, 2))
+            y = np.concatenate([-side[::-1], [np.nan], side])
+            z = self.z + self.sag(np.nan_to_num(y))
+            z[np.isnan(y)] = np.nan
+            return z, y
         y = np.linspace(-self.semi_aperture, self.semi_aperture, samples)
-        return self.z + sag(self.curvature, y), y
+        return self.z + self.sag(y), y
+
+    def obscuration_points(self, samples: int = 21) -> tuple[np.ndarray, np.ndarray] | None:
+        """(z, y) of the obscuring disc on the profile from -r to +r, with a gap (NaN) over a
+        hole, where light passes anyway (None without an obscuration)."""
+        if self.obscuration <= 0:
+            return None
+        if 0 < self.hole < self.obscuration:
+            side = np.linspace(self.hole, self.obscuration, max(samples // 2, 2))
+            y = np.concatenate([-side[::-1], [np.nan], side])
+            z = self.z + self.sag(np.nan_to_num(y))
+            z[np.isnan(y)] = np.nan
+            return z, y
+        y = np.linspace(-self.obscuration, self.obscuration, samples)
+        return self.z + self.sag(y), y
 
     def z_at(self, y: float) -> float:
         """Where the profile is at height y (clamped to the aperture: a flat rim beyond)."""
         limited = max(-self.semi_aperture, min(self.semi_aperture, y))
-        return float(self.z + sag(self.curvature, np.array(limited)))
+        return float(self.z + self.sag(np.array(limited)))
 
 
 @dataclass(frozen=True)
@@ -363,21 +408,35 @@ def _cross_section(system: System, results: FirstOrder | None = None,
                           if v is not None and not isinstance(v, Unavailable)])
     for i, boundary in enumerate(system.boundaries):
         curvature = float(boundary.curvature)
+        rim = reach_of(boundary)
         if boundary.clear_diameter is not None:
             semi, given = float(boundary.clear_diameter) / 2, True
-            if curvature and semi * abs(curvature) >= 1:  # beyond a hemisphere
-                semi = 0.999 / abs(curvature)
-                notes.append(f"{boundary.name}: its clear diameter is larger than its sphere; "
-                             "drawn to a hemisphere")
+            if semi >= rim:  # beyond a hemisphere (or an ellipsoid's rim)
+                semi = rim
+                shape = "sphere" if boundary.profile.is_sphere else "surface"
+                notes.append(f"{boundary.name}: its clear diameter is larger than its {shape}; "
+                             "drawn to where the surface ends")
         else:
             given = False
             semi = max((abs(h[i]) for h in heights), default=0.0) * APERTURE_MARGIN
             if semi == 0:  # no rays: a size the shape can have
                 semi = 0.1 * reach if not curvature else min(0.1 * reach, 0.6 / abs(curvature))
-            if curvature and semi * abs(curvature) >= 1:
-                semi = 0.999 / abs(curvature)
+            semi = min(semi, rim)
+        shape = None if boundary.kind == IDEAL or boundary.profile.is_sphere else \
+            _float_profile(boundary.profile)
+        hole = float(boundary.hole_diameter or 0) / 2
+        obscuration = float(boundary.obscuration_diameter or 0) / 2
+        if hole or obscuration:
+            from ..testing import format_number
+
+            parts = ([f"a central obscuration of {format_number(2 * obscuration)} "
+                      f"{system.units} (grey band)"] if obscuration else []) + \
+                ([f"a hole of {format_number(2 * hole)} {system.units} (left open)"]
+                 if hole else [])
+            notes.append(f"{boundary.name}: " + " and ".join(parts))
         profiles.append(Profile(boundary.name, boundary.kind, vertices[i], curvature, semi,
-                                senses[i], given, float(boundary.power or 0)))
+                                senses[i], given, float(boundary.power or 0), shape,
+                                min(hole, semi), min(obscuration, semi)))
     profiles = _meeting_faces(system, profiles)
 
     # elements: material other than the starting medium between two refracting boundaries
@@ -481,6 +540,16 @@ def _cross_section(system: System, results: FirstOrder | None = None,
                         object_plane, list(dict.fromkeys(notes)), fields, beam)
 
 
+def _float_profile(profile: Any) -> Any:
+    """The profile with plain float coefficients (a drawing is numeric)."""
+    from ..surfaces.profile import Profile as Shape
+
+    return Shape(float(profile.curvature), float(profile.conic),
+                 tuple(float(a) for a in profile.even_terms),
+                 tuple(float(a) for a in profile.q_terms),
+                 None if profile.q_radius is None else float(profile.q_radius))
+
+
 def _micro(value: float, units: str) -> str:
     """A beam radius in words: in µm when under a millimetre, else in the layout's units."""
     from ..measure import LENGTH_UNITS
@@ -565,14 +634,14 @@ def _meeting_faces(system: System, profiles: list[Profile]) -> list[Profile]:
         if (a.from_clear_diameter or b.from_clear_diameter or boundary.medium_after in ambient
                 or a.kind != REFRACT or b.kind != REFRACT or b.z <= a.z):
             continue
-        limits = [0.999 / abs(c) for c in (a.curvature, b.curvature) if c]
+        limits = [r for r in (reach_of(system.boundaries[i]), reach_of(system.boundaries[i + 1]))
+                  if math.isfinite(r)]
         if not limits:
             continue
         top = min(limits)
 
         def thickness(h: float) -> float:
-            return (b.z + float(sag(b.curvature, np.array(h)))) - \
-                (a.z + float(sag(a.curvature, np.array(h))))
+            return (b.z + float(b.sag(np.array(h)))) - (a.z + float(a.sag(np.array(h))))
 
         centre = thickness(0.0)
         if thickness(top) > _MEETING * centre:
@@ -638,7 +707,12 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
             for j in range(len(pupils)):
                 if not alive[j]:
                     continue
-                if rays.status[j] in realrays.LOST or not math.isfinite(float(rays.y[j])):
+                blocked = rays.status[j] == realrays.BLOCKED
+                if blocked:  # stopped by the obscuration: drawn up to the surface
+                    zs[j].append(float(rays.z[j]))
+                    ys[j].append(float(rays.y[j]))
+                if blocked or rays.status[j] in realrays.LOST or \
+                        not math.isfinite(float(rays.y[j])):
                     alive[j] = False
                     words = realrays.STATUS_WORDS.get(int(rays.status[j]), "lost")
                     key = (step.name, words)

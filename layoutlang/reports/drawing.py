@@ -408,6 +408,12 @@ def _draw_profile(ax: Any, profile, y_max: float) -> None:
                     zorder=4)
     else:
         ax.plot(z, y, color=ink, lw=1.0, zorder=4)
+    shadow = profile.obscuration_points()
+    if shadow is not None:  # the blocking disc, a grey band just before the surface
+        zs, ys = shadow
+        lead = -profile.sense_in * 0.02 * max(profile.semi_aperture, 0.2 * y_max)
+        ax.plot(zs + lead, ys, color=STYLE["axis"], lw=4.0, alpha=0.55, zorder=5,
+                solid_capstyle="butt")
 
 
 @guarded

@@ -20,7 +20,7 @@ import numpy as np
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..engines.frames import Layout3D, layout3d
 from ..system import System
-from .cross_section import FIELDS, PUPILS, CrossSection, RayPath, _role, sag
+from .cross_section import FIELDS, PUPILS, CrossSection, RayPath, _role
 
 __all__ = ["PlacedView", "placed_section", "drawing_plane"]
 
@@ -94,7 +94,7 @@ def placed_section(system: System, base: CrossSection, results: FirstOrder,
         across = _in_plane(axes, normal)
         profile = base.profiles[i]
         limited = np.clip(heights, -profile.semi_aperture, profile.semi_aperture)
-        local_z = sag(profile.curvature, limited)
+        local_z = profile.sag(limited)
         return origin[:, None] + np.outer(across, heights) + np.outer(axes[:, 2], local_z)
 
     profiles = []
@@ -151,8 +151,7 @@ def placed_section(system: System, base: CrossSection, results: FirstOrder,
         stop = system.stop
         if stop.after >= 0 and stop.offset == 0:
             origin, axes = placed.surfaces[stop.after]
-            curvature = base.profiles[stop.after].curvature
-            lift = float(sag(curvature, np.array(base.stop[1])))
+            lift = float(base.profiles[stop.after].sag(np.array(base.stop[1])))
         else:
             origin, axes = placed.axis_point(stop.after + 1, float(stop.offset))
             lift = 0.0
