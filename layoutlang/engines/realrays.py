@@ -61,7 +61,7 @@ from ..system import IDEAL, MIRROR, System
 
 __all__ = [
     "OK", "MISSED", "VIGNETTED", "TOTAL_REFLECTION", "BLOCKED", "THROUGH_HOLE", "LOST",
-    "STATUS_WORDS", "Step", "Geometry", "geometry", "Rays", "trace", "CHUNK",
+    "STATUS_WORDS", "Step", "Geometry", "geometry", "Rays", "trace", "trace_step", "CHUNK",
     "Batch", "batch", "NEWTON_LIMIT",
 ]
 
@@ -424,13 +424,22 @@ def _trace_block(block: _Block, steps: Sequence[Step], indices: Sequence[Index])
         k /= block.share(indices[after])
 
 
+def trace_step(rays: Rays, geo: Geometry, indices: Sequence[Index], where: int) -> Rays:
+    """Step `where` of a placed layout alone, on rays in the global frame and back to it, in
+    place: drawings record the rays at every surface of a folded path."""
+    for lo in range(0, len(rays), CHUNK):
+        _trace_placed(_Block(rays, lo, min(lo + CHUNK, len(rays))), geo, indices, where + 1,
+                      "global", first=where)
+    return rays
+
+
 def _trace_placed(block: _Block, geo: Geometry, indices: Sequence[Index], count: int,
-                  coordinates: str) -> None:
+                  coordinates: str, first: int = 0) -> None:
     """A placed layout: each step in its surface's local frame (global ↔ local around the
     one-step `_trace_block`), per-ray status kept with the step's own number."""
     p, k = block.data[0:3], block.data[3:6]
     with np.errstate(invalid="ignore"):
-        for where in range(count):
+        for where in range(first, count):
             origin, axes = geo.frames[where]
             p -= origin[:, None]
             p[...] = axes.T @ p

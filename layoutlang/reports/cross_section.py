@@ -85,6 +85,11 @@ class Profile:
     shape: Any = None
     hole: float = 0.0
     obscuration: float = 0.0
+    #: a placed layout (placed_section.py): the face as drawn (u, v), the unit direction
+    #: behind a mirror in the drawing, and the vertex's v; `z` is then the vertex's u
+    outline: tuple[tuple[float, ...], tuple[float, ...]] | None = None
+    back: tuple[float, float] | None = None
+    vertex_v: float = 0.0
 
     def sag(self, height: np.ndarray) -> np.ndarray:
         return sag(self.curvature, height, self.shape)
@@ -92,6 +97,8 @@ class Profile:
     def points(self, samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
         """(z, y) along the profile from -semi_aperture to +semi_aperture; a hole leaves a gap
         (NaN, which a plotted line skips) between -hole and +hole."""
+        if self.outline is not None:
+            return np.array(self.outline[0]), np.array(self.outline[1])
         if 0 < self.hole < self.semi_aperture:
             side = np.linspace(self.hole, self.semi_aperture, max(samples // 2, 2))
             y = np.concatenate([-side[::-1], [np.nan], side])
@@ -129,10 +136,13 @@ class Element:
     second: int
     medium: str
     edge: float  # the semi-height of its rim
+    polygon: tuple[tuple[float, ...], tuple[float, ...]] | None = None  # placed: as drawn
 
     def outline(self, profiles: list[Profile], samples: int = 81) -> tuple[np.ndarray, np.ndarray]:
         """A closed outline: down the first face, up the second, with flat rims where one
         face is smaller than the rim."""
+        if self.polygon is not None:
+            return np.array(self.polygon[0]), np.array(self.polygon[1])
         y = np.linspace(-self.edge, self.edge, samples)
         a, b = profiles[self.first], profiles[self.second]
         za = np.array([a.z_at(v) for v in y])
@@ -200,9 +210,13 @@ class CrossSection:
     #: the field fractions of the drawn bundles (the legend names them)
     fields: tuple[float, ...] = ()
     beam: BeamEnvelope | None = None  # a layout with a Gaussian beam
+    placed: Any = None  # placed_section.PlacedView: the folded path as drawn
 
     def extent(self) -> tuple[float, float, float]:
         """(z min, z max, largest |y|) of everything drawn."""
+        if self.placed is not None:
+            u0, u1, v0, v1 = self.placed.bounds
+            return u0, u1, max(abs(v0), abs(v1))
         zs = [p.z for p in self.profiles]
         ys = [p.semi_aperture for p in self.profiles]
         for ray in self.rays:
@@ -305,7 +319,14 @@ def cross_section(system: System, results: FirstOrder | None = None,
     range of floating point are left out with a note, never drawn as inf or NaN."""
     try:
         with np.errstate(all="ignore"):
-            section = _cross_section(system, results, exact)
+            results = results or first_order(system)
+            if system.is_coaxial:
+                section = _cross_section(system, results, exact)
+            else:  # the folded path: the coaxial section moved into place
+                from .placed_section import placed_section
+
+                section = placed_section(system, _cross_section(system, results, False),
+                                         results, exact)
     except LayoutError:
         raise
     except (ArithmeticError, ValueError) as error:

@@ -81,7 +81,6 @@ def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]
     from dataclasses import replace
 
     from ..engines.firstorder import Unavailable, first_order
-    from ..system import ImageSpec
 
     sets = []
     primary = system.primary_wavelength
@@ -94,7 +93,9 @@ def _ray_sets(system: System, exact: bool) -> list[tuple[str, str, CrossSection]
         nm = _nm(system, wave.value)
         coloured = at(wave.value)
         if not isinstance(plane, Unavailable):
-            coloured = replace(coloured, image=ImageSpec(float(plane)))
+            # the same plane, keeping its tilt (a sensor mounted off square)
+            coloured = replace(coloured, image=replace(coloured.image, distance=float(plane),
+                                                       at_infinity=False))
         label = f"{nm:g} nm" + (" (primary)" if wave is primary else "")
         sets.append((label, _wavelength_colour(nm), cross_section(coloured, exact=exact)))
     return sets
@@ -136,6 +137,10 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True,
     figure_width = width
     sets = _ray_sets(system, exact)
     section = sets[-1][2]  # the primary wavelength's
+    if section.placed is not None:  # the folded path, in the plane of the fold
+        from .placed_drawing import placed_figure
+
+        return placed_figure(system, sets, hazards, figure_width)
     z_min, z_max, y_max = section.extent()
     for _, _, other in sets[:-1]:
         a, b, c = other.extent()
