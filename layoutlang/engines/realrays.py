@@ -615,10 +615,31 @@ def _polynomial(step: Step, block: _Block):
     if not (step.even_terms or step.q_terms):
         return None
     share = block.share
+    if step.even_terms and not step.q_terms:
+        terms = tuple(share(a) for a in step.even_terms)
+        return lambda rho: _even_in_place(terms, rho)
     profile = Profile(0.0, 0.0, tuple(share(a) for a in step.even_terms),
                       tuple(share(a) for a in step.q_terms),
                       None if step.q_radius is None else share(step.q_radius))
     return profile.polynomial
+
+
+def _even_in_place(terms: tuple, rho: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Σ A_2i ρ^i (i from 2) and its ρ-derivative by Horner's rule in two arrays, updated in
+    place (the same sums as `Profile.polynomial`, without a temporary per term)."""
+    last = len(terms) - 1
+    value, slope = np.empty_like(rho), np.empty_like(rho)
+    value[...] = terms[last]
+    slope[...] = (last + 2) * terms[last]
+    for j in range(last - 1, -1, -1):
+        value *= rho
+        value += terms[j]
+        slope *= rho
+        slope += (j + 2) * terms[j]
+    value *= rho
+    value *= rho
+    slope *= rho
+    return value, slope
 
 
 def _meet_profile(block: _Block, where: int, step: Step, n: Index, form: str) -> None:
@@ -651,8 +672,7 @@ def _meet_profile(block: _Block, where: int, step: Step, n: Index, form: str) ->
         guess = ~np.isfinite(t)
         if guess.any():  # the conic is missed: start from the vertex plane
             t[guess] = -z[guess] / kz[guess]
-        _newton(block, c, cq, polynomial, n, rho0, beta, gamma)
-        value, slope = polynomial(rho0 + t * (2.0 * beta + gamma * t))
+        value, slope = _newton(block, c, cq, polynomial, n, rho0, beta, gamma)
         np.copyto(block.b, value)
         np.copyto(block.g, slope)
         w = z + t * kz - value
@@ -662,13 +682,20 @@ def _meet_profile(block: _Block, where: int, step: Step, n: Index, form: str) ->
         t[wrong_branch] = np.nan
 
 
-def _newton(block: _Block, c, cq, polynomial, n, rho0, beta, gamma) -> None:
-    """Newton steps on G(τ) = c ρ + c q w² - 2 w, w = z + τ K_z - P(ρ), from `block.t`.
+def _newton(block: _Block, c, cq, polynomial, n, rho0, beta, gamma):
+    """Newton steps on G(τ) = c ρ + c q w² - 2 w, w = z + τ K_z - P(ρ), from `block.t`;
+    returns P and dP/dρ at the final τ.
 
     ρ(τ) = ρ0 + 2 β τ + γ τ² is kept as a quadratic in τ, so a step costs the polynomial and a
-    few products. Quadratic convergence: once every step is below 1e-9 of the path the next
-    error is far below rounding, so that step is the last. Rays still moving after
-    NEWTON_LIMIT steps get τ = NaN (flagged missed by the caller).
+    few products. Stopping: Newton's error falls quadratically, e_(k+1) ≈ M e_k², and the step
+    d_k estimates e_k, so after two steps the error left is about d_k³ / d_(k-1)² (the usual
+    estimate of M from successive steps, e.g. C. T. Kelley 1995, Iterative Methods for Linear
+    and Nonlinear Equations, ch. 5); once that, or the step itself, is below 1e-9 of the path
+    for every ray the iteration stops — started from the conic this is two steps for the
+    usual small aspheric departures. P and dP/dρ at the last τ come from the last evaluation,
+    moved by dP/dρ · Δρ and by the secant of the last two slopes · Δρ (what is neglected is
+    of order Δρ², far below rounding there), so no evaluation is spent on checking. Rays
+    still moving after NEWTON_LIMIT steps get τ = NaN (flagged missed by the caller).
     """
     z, kz = block.data[2], block.data[5]
     t = block.t
@@ -676,28 +703,64 @@ def _newton(block: _Block, c, cq, polynomial, n, rho0, beta, gamma) -> None:
     finite = np.isfinite(t)
     reach = float(np.max(np.abs(t[finite]), initial=0.0)) * size
     tolerance = 1e-9 * (1.0 + reach) / size
-    delta = None
+    previous = before = None
+    delta = big = None
+    c_rho0 = c * rho0
     for _ in range(NEWTON_LIMIT):
         span = beta + gamma * t
-        value, slope = polynomial(rho0 + t * (span + beta))
-        w = z + kz * t
+        span2 = span + beta  # ρ = ρ0 + τ (2β + γτ)
+        rho = span2 * t
+        rho += rho0
+        value, slope = polynomial(rho)
+        w = kz * t
+        w += z
         w -= value
         dw = slope * span
         dw *= -2.0
         dw += kz
         big = cq * w
-        g = (big - 2.0) * w
-        g += c * (span + beta) * t
-        g += c * rho0
+        g = big - 2.0
+        g *= w
+        span2 *= t
+        span2 *= c
+        g += span2
+        g += c_rho0
         big -= 1.0
         big *= dw
-        big += c * span
+        span *= c
+        big += span
         big *= 2.0  # dG/dτ
         delta = np.divide(g, big, out=g)
         t -= delta
-        if not np.fmax.reduce(np.abs(delta)) > tolerance:  # NaN rays do not hold the rest
-            return
-    t[np.abs(delta) > tolerance] = np.nan
+        size_now = np.abs(delta)
+        largest = np.fmax.reduce(size_now)  # NaN rays do not hold the rest
+        if not largest > tolerance:
+            break
+        if previous is not None:
+            with np.errstate(divide="ignore", invalid="ignore"):
+                left = size_now * size_now
+                left *= size_now
+                left /= previous * previous
+            if not np.fmax.reduce(left) > tolerance:  # 0/0 (a ray already exact) is NaN
+                break
+        previous = size_now
+        before = (rho, slope)
+    else:
+        t[np.abs(delta) > tolerance] = np.nan
+    if before is None:  # settled at the first step: evaluate where it ended
+        return polynomial(rho0 + t * (2.0 * beta + gamma * t))
+    # moved = ρ(τ + δ) - ρ(τ) = δ (2 β + γ (2 τ + δ)), τ the new value: P by its slope, the
+    # slope by the secant through the last two evaluations (P'' Δρ), both far below rounding
+    moved = gamma * (2.0 * t + delta)
+    moved += 2.0 * beta
+    moved *= delta
+    rho_before, slope_before = before
+    with np.errstate(divide="ignore", invalid="ignore"):
+        curve = np.divide(slope - slope_before, rho - rho_before)
+    curve[~np.isfinite(curve)] = 0.0
+    value = value - slope * moved
+    slope = slope - curve * moved
+    return value, slope
 
 
 def _turn_profile(block: _Block, where: int, step: Step, n: Index, n2: Index) -> None:
