@@ -100,3 +100,37 @@ def test_closed_form_evaluates_like_the_ring_value() -> None:
         value = float(d.expr.subs(part.nominal))
         assert _close(value, d.nominal_value)
         assert _close(value, first_order(program.system)[name])
+
+
+def test_seidel_sums_at_the_nominal_values_are_the_numeric_engines() -> None:
+    # Each symbolic third-order sum (engines/seidel.py on exact ratios) evaluated at the
+    # nominal values equals the numeric sum of the same layout, symbols in radii, a gap, a
+    # conic constant and an r4 coefficient alike.
+    import pytest
+    import sympy as sp
+
+    from layoutlang import loads
+    from layoutlang.engines.seidel import seidel
+    from layoutlang.symbolic.derive import derive
+    from layoutlang.symbolic.layout import SEIDEL_DERIVABLE
+
+    program = loads("""
+symbols R1 t k A positive
+nominal R1 = 40, t = 6, k = 0.5, A = 0.000002
+medium glass index 1.6
+object 300 before, height 5
+start in air
+surface front radius R1 into glass, conic constant -k, r4 coefficient A
+gap t
+surface back radius -90 into air
+stop at front, diameter 12
+image at focus
+""")
+    part = program.symbolic
+    numeric = seidel(program.system)
+    point = {s: part.nominal[s] for s in part.symbols}
+    for name in SEIDEL_DERIVABLE:
+        expr = derive(part, name).expr
+        attribute = name.removesuffix(" sum").replace(" ", "_")
+        assert float(sp.N(expr.subs(point), 30)) == pytest.approx(numeric.total(attribute),
+                                                                   rel=1e-9, abs=1e-15)

@@ -65,7 +65,12 @@ class SeidelSums:
     image_index: float  # signed: carries the sense of travel in image space
 
     def total(self, name: str) -> float:
-        return float(sum(getattr(s, name) for s in self.surfaces))
+        """The sum over the surfaces (a float, or an exact ratio from the symbolic engine)."""
+        values = [getattr(s, name) for s in self.surfaces]
+        total = values[0] if values else 0.0
+        for value in values[1:]:
+            total = total + value
+        return float(total) if isinstance(total, (int, float)) else total
 
     @property
     def petzval_sum(self) -> float:
@@ -81,7 +86,8 @@ class SeidelSums:
 
 def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: float,
                      indices: Sequence[Any] | None = None,
-                     dispersions: Sequence[Any] | None = None) -> SeidelSums:
+                     dispersions: Sequence[Any] | None = None,
+                     number: Any = float) -> SeidelSums:
     """Seidel sums from the marginal (y, nu) and chief (ȳ, ν̄) rays at the first vertex.
 
     Args:
@@ -90,21 +96,24 @@ def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: 
         y_bar, nu_bar: the same for the chief ray.
         indices: physical index of each space (the layout's own by default).
         dispersions: δn of each space (short minus long wavelength); zeros by default.
+        number: how a layout number is read: `float` for the numeric engine; the symbolic
+            engine passes its exact ratios through unchanged (the sums are then rational
+            functions of the symbols, polynomial in conic constants and coefficients).
     """
     indices = list(system.indices() if indices is None else indices)
     dispersions = list(dispersions) if dispersions is not None else [0.0] * len(indices)
     senses = system.directions()
-    signed = [s * float(n) for s, n in zip(senses, indices)]
-    signed_dn = [s * float(d) for s, d in zip(senses, dispersions)]
+    signed = [s * number(n) for s, n in zip(senses, indices)]
+    signed_dn = [s * number(d) for s, d in zip(senses, dispersions)]
     lagrange = nu_bar * y - nu * y_bar  # H = n (ū y - u ȳ)
     rows = []
     for i, boundary in enumerate(system.boundaries):
         n, n2 = signed[i], signed[i + 1]
-        c = float(boundary.curvature)
-        b = 0.0 if boundary.is_spherical or boundary.kind == IDEAL else \
-            float(boundary.profile.fourth_order())
+        c = number(boundary.curvature)
+        b = 0.0 if boundary.kind == IDEAL or (number is float and boundary.is_spherical) else \
+            number(boundary.profile.fourth_order())
         if boundary.kind == IDEAL:
-            phi = thin_lens_power(n, senses[i], float(boundary.power))
+            phi = thin_lens_power(n, senses[i], number(boundary.power))
             nu2, nu_bar2 = nu - y * phi, nu_bar - y_bar * phi
             rows.append(SurfaceSums(boundary.name, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0))
         else:
@@ -116,7 +125,7 @@ def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: 
             d_1_n = 1 / n2 - 1 / n
             d_1_n2 = 1 / (n2 * n2) - 1 / (n * n)
             d_dn_n = signed_dn[i + 1] / n2 - signed_dn[i] / n
-            e = 8.0 * b * (n2 - n)  # the aspheric factor 8 b Δn
+            e = 8 * b * (n2 - n)  # the aspheric factor 8 b Δn
             rows.append(SurfaceSums(
                 boundary.name,
                 spherical=-a * a * y * d_u_n + e * y ** 4,
@@ -131,9 +140,9 @@ def seidel_from_rays(system: System, y: float, nu: float, y_bar: float, nu_bar: 
             ))
         nu, nu_bar = nu2, nu_bar2
         if i < len(system.gaps):
-            tau = float(system.gaps[i]) / float(indices[i + 1])
+            tau = number(system.gaps[i]) / number(indices[i + 1])
             y, y_bar = y + tau * nu, y_bar + tau * nu_bar
-    return SeidelSums(tuple(rows), float(lagrange), signed[-1])
+    return SeidelSums(tuple(rows), number(lagrange), signed[-1])
 
 
 def seidel(system: System, results: FirstOrder | None = None,

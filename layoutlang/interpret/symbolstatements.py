@@ -94,7 +94,7 @@ class SymbolicStatements:
             state["nominal"][symbol] = value
 
     def _derivable(self, quantity: t.Quantity, allow_equation: bool = False) -> str:
-        from ..symbolic.layout import BEAM_DERIVABLE, DERIVABLE, ROOTED
+        from ..symbolic.layout import BEAM_DERIVABLE, DERIVABLE, ROOTED, SEIDEL_DERIVABLE
 
         if allow_equation and quantity.text in ("conjugate equation", "lensmaker equation"):
             return quantity.text
@@ -106,9 +106,10 @@ class SymbolicStatements:
                                        hint="declare it with 'beam waist radius W, waist D "
                                             "before, wavelength L'")
             return info.name
-        if info.name not in DERIVABLE:
+        if info.name not in DERIVABLE and info.name not in SEIDEL_DERIVABLE:
             raise LayoutValueError(f"{info.name} has no closed form here", self.span(quantity),
-                                   expected="a first-order quantity such as image distance")
+                                   expected="a first-order quantity such as image distance, "
+                                            "or a Seidel sum such as spherical sum")
         return info.name
 
     def statement_Derive(self, node: t.Derive) -> None:

@@ -20,7 +20,7 @@ from ..system import Medium, ObjectSpec, StopSpec, System
 from .algebra import Ratio, RingContext, TooLarge
 from .convert import make_context, to_ratio
 
-__all__ = ["SymbolicLayout", "DERIVABLE", "BEAM_DERIVABLE", "ROOTED"]
+__all__ = ["SymbolicLayout", "DERIVABLE", "BEAM_DERIVABLE", "SEIDEL_DERIVABLE", "ROOTED"]
 
 #: Every quantity `derive` knows, in report order (the names of `quantities.py`).
 DERIVABLE = (
@@ -39,6 +39,11 @@ DERIVABLE = (
 #: of the matrix from the input waist and the confocal parameter b = π w0²/(M² λ).
 BEAM_DERIVABLE = ("waist position", "waist radius", "rayleigh range")
 
+#: The third-order sums `derive` and `solve` know (engines/seidel.py run on exact ratios):
+#: polynomial in conic constants and aspheric coefficients, rational in the rest.
+SEIDEL_DERIVABLE = ("spherical sum", "coma sum", "astigmatism sum", "field curvature sum",
+                    "distortion sum")
+
 #: Quantities the ring holds squared (their closed form is the square root of the ratio).
 ROOTED = frozenset({"waist radius"})
 
@@ -46,7 +51,7 @@ ROOTED = frozenset({"waist radius"})
 def _system_values(system: System) -> list[Any]:
     values: list[Any] = [m.index for m in system.media]
     for b in system.boundaries:
-        values += [b.curvature, b.power]
+        values += [b.curvature, b.power, b.conic, *b.even_terms, *b.q_terms, b.q_radius]
     values += list(system.gaps)
     obj = system.object
     values += [obj.distance, obj.height, obj.field_angle]
@@ -94,8 +99,12 @@ class SymbolicLayout:
         self.ring_system = replace(
             s,
             media=tuple(Medium(m.name, r(m.index)) for m in s.media),
-            boundaries=tuple(replace(b, curvature=r(b.curvature), power=r(b.power),
-                                     clear_diameter=None) for b in s.boundaries),
+            boundaries=tuple(replace(
+                b, curvature=r(b.curvature), power=r(b.power), clear_diameter=None,
+                conic=r(b.conic), even_terms=tuple(r(a) for a in b.even_terms),
+                q_terms=tuple(r(a) for a in b.q_terms),
+                q_radius=None if b.q_radius is None else r(b.q_radius),
+                obscuration_diameter=None, hole_diameter=None) for b in s.boundaries),
             gaps=tuple(r(g) for g in s.gaps),
             object=ObjectSpec(None if obj.distance is None else r(obj.distance), r(obj.height), 0),
             stop=None if s.stop is None else replace(s.stop, offset=r(s.stop.offset),
@@ -370,6 +379,40 @@ class SymbolicLayout:
         return y_vertex, nu_vertex, 2 * y_stop * self._sign(y_stop, "stop height")
 
 
+    def _seidel(self, name: str) -> Ratio | Unavailable:
+        """A third-order sum for the full aperture and field, by `engines.seidel` on the ring's
+        numbers (the marginal and chief rays at the first vertex as `seidel.seidel` starts
+        them; constant indices, so no chromatic terms)."""
+        from ..engines.seidel import seidel_from_rays
+
+        if "seidel" not in self._cache:
+            entrance = self.quantity("entrance pupil position")
+            diameter = self.quantity("entrance pupil diameter")
+            for what, value in (("entrance pupil position", entrance),
+                                ("entrance pupil diameter", diameter)):
+                if isinstance(value, Unavailable):
+                    return Unavailable(f"none: the {what} is {value}")
+            s, n0 = self.ring_system, self.n0
+            radius = diameter / 2
+            if s.object.distance is None:
+                y, nu = radius, to_ratio(self.ctx, 0)
+                nu_bar = -n0 * self.field_tangent
+                y_bar = -entrance * nu_bar / n0
+            else:
+                distance, height = s.object.distance, s.object.height
+                if (entrance + distance).is_zero():
+                    return Unavailable("none: the entrance pupil lies at the object")
+                slope = radius / (entrance + distance)
+                y, nu = distance * slope, n0 * slope
+                slope_bar = -height / (entrance + distance)
+                y_bar, nu_bar = height + distance * slope_bar, n0 * slope_bar
+            indices = s.indices()
+            zeros = [to_ratio(self.ctx, 0)] * len(indices)
+            self._cache["seidel"] = seidel_from_rays(s, y, nu, y_bar, nu_bar, indices, zeros,
+                                                     number=lambda v: v)
+        attribute = name.removesuffix(" sum").replace(" ", "_")
+        return self._cache["seidel"].total(attribute)
+
     def _beam(self, name: str) -> Ratio | Unavailable:
         """A beam quantity through the same matrix as the numeric engine (engines/beams.py):
         the input waist's transfer, then the layout's steps, then `paraxial.gaussian`."""
@@ -390,6 +433,8 @@ class SymbolicLayout:
 
 
 _METHODS: dict[str, Callable[[SymbolicLayout], Any]] = {}
+for _name in SEIDEL_DERIVABLE:
+    _METHODS[_name] = lambda self, n=_name: self._seidel(n)
 for _name in BEAM_DERIVABLE:
     _METHODS[_name] = lambda self, n=_name: self._beam(n)
 for _name in ("power", "focal length", "object focal length", "effective focal length",

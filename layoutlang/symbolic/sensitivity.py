@@ -30,16 +30,24 @@ class Row:
 
 
 def symbol_role(part: SymbolicPart, symbol: Any) -> str:
-    """'index' when the symbol only enters through refractive indices, else 'length'."""
-    in_index = any(getattr(m.index, "free_symbols", set()) and symbol in m.index.free_symbols
-                   for m in part.system.media)
-    others = []
+    """'index' when the symbol only enters through refractive indices, 'conic' when only
+    through conic constants (plain numbers), else 'length'."""
+    def has(value: Any) -> bool:
+        return value is not None and symbol in getattr(value, "free_symbols", set())
+
     s = part.system
+    in_index = any(has(m.index) for m in s.media)
+    in_conic = any(has(b.conic) for b in s.boundaries)
+    others = []
     for b in s.boundaries:
-        others += [b.curvature, b.power]
+        others += [b.curvature, b.power, *b.even_terms, *b.q_terms, b.q_radius]
     others += list(s.gaps) + [s.object.distance, s.object.height]
-    in_other = any(symbol in getattr(v, "free_symbols", set()) for v in others if v is not None)
-    return "index" if in_index and not in_other else "length"
+    in_other = any(has(v) for v in others)
+    if in_other:
+        return "length"
+    if in_index and not in_conic:
+        return "index"
+    return "conic" if in_conic and not in_index else "length"
 
 
 def _unit(part: SymbolicPart, quantity: str, symbol: Any) -> str:
@@ -47,7 +55,8 @@ def _unit(part: SymbolicPart, quantity: str, symbol: Any) -> str:
 
     units = part.system.units
     top = {"length": units, "power": f"1/{units}", "number": "1"}[lookup(quantity).kind]
-    bottom = "unit of index" if symbol_role(part, symbol) == "index" else units
+    role = symbol_role(part, symbol)
+    bottom = {"index": "unit of index", "conic": "unit of conic constant"}.get(role, units)
     return f"{top} per {bottom}"
 
 
