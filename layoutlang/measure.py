@@ -57,6 +57,10 @@ def unit_scale(unit: str, script_unit: str) -> tuple[float, int, int, bool]:
         return 1.0, 0, 1, False
     if unit == "mrad":
         return 1e-3, 0, 1, False
+    if unit in ("arcmin", "arcsec"):  # 1/60 and 1/3600 of a degree
+        import math
+
+        return math.pi / 180.0 / (60.0 if unit == "arcmin" else 3600.0), 0, 1, False
     if unit == "dB":  # a ratio in decibels: a plain number, read where decibels are meant
         return 1.0, 0, 0, False
     if unit in ("diopters", "diopter"):  # 1 diopter = 1 per metre

@@ -15,7 +15,7 @@ from ..quantities import PERCENT
 from ..syntax import tree as t
 from ..system import IDEAL
 from ..tolerance.model import (DEFAULT_SAMPLES, DEFAULT_SEED, DEFAULT_SIGMAS,
-                               NORMAL, UNIFORM, Compensator, ToleranceItem, ToleranceSetup,
+                               NORMAL, PLACED, UNIFORM, Compensator, ToleranceItem, ToleranceSetup,
                                YieldRequest)
 
 __all__ = ["ToleranceStatements", "MAX_SAMPLES"]
@@ -23,7 +23,7 @@ __all__ = ["ToleranceStatements", "MAX_SAMPLES"]
 #: More samples than this belong on a cluster run (`layoutlang tolerance --samples`).
 MAX_SAMPLES = 10_000_000
 
-_LENGTH_TARGETS = {"radius", "gap", "clear diameter"}
+_LENGTH_TARGETS = {"radius", "gap", "clear diameter", "decenter"}
 
 
 class ToleranceStatements:
@@ -122,7 +122,7 @@ class ToleranceStatements:
             items.append(self._tolerance_item(node, system))
         seen = {}
         for item, (node, _) in zip(items, state["items"]):
-            key = (item.target, item.name)
+            key = (item.target, item.name, item.through, item.axis)
             if key in seen:
                 raise LayoutValueError(f"{item.label} is toleranced twice "
                                        f"(also on line {seen[key]})", self.span(node))
@@ -138,7 +138,19 @@ class ToleranceStatements:
         span = self.span(node)
         measure = self.value(node.limit)
         relative = bool(measure.relative)
-        if relative:
+        if target not in PLACED and (node.through is not None or node.axis is not None):
+            extra = node.through if node.through is not None else node
+            raise LayoutValueError(f"'through' and a direction belong to a decenter or tilt "
+                                   f"tolerance, not to a {target}", self.span(extra))
+        if target in PLACED and relative:
+            raise LayoutUnitError(f"a {target} tolerance is a {'length' if target == 'decenter' else 'angle'}, "
+                                  "not a percentage", self.span(node.limit))
+        if target == "tilt":
+            limit = self.angle(node.limit, "a tilt tolerance")
+            if not 0 < float(limit) < math.radians(10):
+                raise LayoutValueError("a tilt tolerance is a small angle, above 0 and below "
+                                       "10 deg", self.span(node.limit))
+        elif relative:
             limit = float(measure.value)
         elif target in _LENGTH_TARGETS:
             limit = self.length(node.limit, f"a {target} tolerance")
@@ -180,6 +192,8 @@ class ToleranceStatements:
                 if position >= len(system.gaps):
                     raise LayoutValueError(f"no gap follows {name!r}: it is the last surface",
                                            self.span(node.name))
+            elif target in PLACED:
+                pass  # every surface, mirror or ideal lens can sit off its place
             elif boundary.kind == IDEAL and target != "clear diameter":
                 raise LayoutValueError(f"{name!r} is an ideal lens: it has no {target}",
                                        self.span(node.name),
@@ -195,8 +209,23 @@ class ToleranceStatements:
             if relative and target == "conic constant" and boundary.conic == 0:
                 raise LayoutValueError("a relative tolerance of a zero conic constant is zero",
                                        self.span(node.limit), hint="give an absolute limit")
+        last, through, axis = -1, "", ""
+        if target in PLACED:
+            last = position
+            if node.through is not None:
+                last = self._tolerance_boundary(node.through, system)
+                through = node.through.text
+                if last < position:
+                    raise LayoutValueError(f"{through!r} comes before {name!r}: an element runs "
+                                           "from its first surface to its last",
+                                           self.span(node.through))
+            axis = node.axis or ("y" if target == "decenter" else "x")
+            if target == "decenter" and axis == "z":
+                raise LayoutValueError("a decenter is across the axis (x or y); along z it is "
+                                       "a gap", self.span(node),
+                                       hint=f"tolerance the gap after the surface before {name!r}")
         return ToleranceItem(target, name, position, limit, relative, distribution, sigmas,
-                             span.line_text.strip(), span.line)
+                             span.line_text.strip(), span.line, last, through, axis)
 
     def _tolerance_boundary(self, ident: t.Ident, system) -> int:
         try:

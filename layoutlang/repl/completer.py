@@ -24,7 +24,7 @@ __all__ = ["LayoutCompleter", "next_terminals", "candidates", "units_for"]
 
 _PARTIAL = re.compile(r"[A-Za-z_][A-Za-z0-9_-]*$")
 #: The words the UNIT terminal matches (grammar/layoutlang.lark), for completion after a number.
-_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "mrad", "diopters", "diopter",
+_UNIT_WORDS = ("nm", "um", "mm", "cm", "m", "in", "deg", "rad", "mrad", "arcmin", "arcsec", "diopters", "diopter",
                "dB")
 _LENGTH_UNITS = ("nm", "um", "mm", "cm", "m", "in")
 #: The word that says what kind of value follows, and the units that value may take.

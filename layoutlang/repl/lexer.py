@@ -33,7 +33,7 @@ def grammar_keywords() -> tuple[str, ...]:
     return tuple(sorted(found, key=lambda w: (-len(w), w)))
 
 
-_UNITS = r"(?:nm|um|µm|mm|cm|mrad|m|in|deg|rad|diopters|diopter|dB)\b|%"
+_UNITS = r"(?:nm|um|µm|mm|cm|mrad|m|in|deg|rad|arcmin|arcsec|diopters|diopter|dB)\b|%"
 
 
 class LayoutLexer(RegexLexer):

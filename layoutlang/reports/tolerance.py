@@ -26,7 +26,9 @@ def _percent(value: float) -> str:
 def limit_words(item, units: str) -> str:
     if item.relative:
         return f"± {format_number(item.limit * 100)} %"
-    unit = {"radius": units, "gap": units, "clear diameter": units,
+    if item.target == "tilt":
+        return f"± {format_number(math.degrees(item.limit) * 60)} arcmin"
+    unit = {"radius": units, "gap": units, "clear diameter": units, "decenter": units,
             "curvature": f"1/{units}"}.get(item.target, "")
     return f"± {format_number(item.limit)} {unit}".rstrip()
 
@@ -34,7 +36,10 @@ def limit_words(item, units: str) -> str:
 def perturbation_words(item, delta: float, units: str) -> str:
     if item.relative:
         return f"{item.label} {_num(delta * 100, True)} %"
-    unit = {"radius": units, "gap": units, "clear diameter": units}.get(item.target, "")
+    if item.target == "tilt":
+        return f"{item.label} {_num(math.degrees(delta) * 60, True)} arcmin"
+    unit = {"radius": units, "gap": units, "clear diameter": units,
+            "decenter": units}.get(item.target, "")
     return f"{item.label} {_num(delta, True)} {unit}".rstrip()
 
 

@@ -28,6 +28,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
+import numpy as np
+
 __all__ = ["Placement", "Frame", "RETURNS", "FOLLOWS", "IDENTITY"]
 
 Number = Any
@@ -48,7 +50,7 @@ class Placement:
     @property
     def is_identity(self) -> bool:
         """No decenter and no tilt (a zero placement must change nothing, bit for bit)."""
-        return all(v == 0 for v in self.decenter) and all(v == 0 for v in self.tilt)
+        return all(bool(np.all(np.asarray(v) == 0)) for v in self.decenter + self.tilt)
 
 
 @dataclass(frozen=True)

@@ -700,14 +700,20 @@ def _tolerance_builders() -> None:
     """The builder methods of grammar/tolerances.lark, kept together."""
 
     def tolerance_on(self, meta, items):
-        (target, name), _, limit, distribution = items
-        return t.ToleranceOn(target, name, limit, distribution, pos=_pos(meta))
+        (target, name, through), _, limit, axis, distribution = items
+        return t.ToleranceOn(target, name, limit, distribution, through, axis, pos=_pos(meta))
 
     def tolerance_of(self, meta, items):
-        return items[0], _ident(items[1])
+        return items[0], _ident(items[1]), items[2]
 
     def tolerance_gap(self, meta, items):
-        return "gap", _ident(items[0])
+        return "gap", _ident(items[0]), None
+
+    def tolerance_along(self, meta, items):
+        return str(items[0])
+
+    def tolerance_about(self, meta, items):
+        return str(items[0])
 
     def toleranced(self, meta, items):
         return " ".join(str(token) for token in items)
@@ -737,7 +743,8 @@ def _tolerance_builders() -> None:
         quantity, op, value = items
         return t.ExpectYield(quantity, op, value, pos=_pos(meta))
 
-    for method in (tolerance_on, tolerance_of, tolerance_gap, toleranced, distribution_uniform,
+    for method in (tolerance_on, tolerance_of, tolerance_gap, tolerance_along, tolerance_about,
+                   toleranced, distribution_uniform,
                    distribution_normal, distribution_end_points, compensate_focus,
                    compensate_gap, monte_carlo, report_tolerances, expect_yield):
         setattr(_Builder, method.__name__, v_args(meta=True)(method))

@@ -27,7 +27,7 @@ _DESCRIPTIONS = {
     "NUMBER": "a number",
     "NAME": "a name",
     "STRING": 'a text in double quotes',
-    "UNIT": "a unit (nm, um, mm, cm, m, in, deg, rad, mrad, diopters, dB or %)",
+    "UNIT": "a unit (nm, um, mm, cm, m, in, deg, rad, mrad, arcmin, arcsec, diopters, dB or %)",
     "_NL": "the end of the line",
     "$END": "the end of the script",
     "MINUS": "'-'",

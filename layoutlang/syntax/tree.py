@@ -557,10 +557,12 @@ class Distribution(Node):
 class ToleranceOn(Statement):
     """`tolerance radius of front ± 0.1 mm[, normal 2 sigma]` or `tolerance gap after front ± …`."""
 
-    target: str  # 'radius' | 'curvature' | 'index' | 'abbe number' | 'conic constant' | 'clear diameter' | 'gap'
+    target: str  # 'radius' | 'curvature' | 'index' | 'abbe number' | 'conic constant' | 'clear diameter' | 'gap' | 'decenter' | 'tilt'
     name: Ident
     limit: Expr
     distribution: Distribution | None = None
+    through: Ident | None = None  # decenter/tilt of an element: its last surface
+    axis: str | None = None  # decenter: 'along x|y'; tilt: 'about x|y|z' (the axis letter)
 
 
 @node

@@ -316,7 +316,11 @@ def _Solve(node: t.Solve) -> str:
 def _ToleranceOn(node: t.ToleranceOn) -> str:
     target = f"gap after {node.name.text}" if node.target == "gap" \
         else f"{node.target} of {node.name.text}"
+    if node.through is not None:
+        target += f" through {node.through.text}"
     text = f"tolerance {target} ± {expression_text(node.limit)}"
+    if node.axis is not None:
+        text += (" along " if node.target == "decenter" else " about ") + node.axis
     d = node.distribution
     if d is not None:
         text += ", " + d.kind + ("" if d.sigmas is None else f" {expression_text(d.sigmas)} sigma")

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..checks import check_program, to_display
 from ..engines.firstorder import Unavailable, first_order
-from ..quantities import QUANTITIES
+from ..quantities import QUANTITIES, RAY_QUANTITIES
 from ..testing import passes
 from .model import YieldRequest
 
@@ -40,7 +40,10 @@ def batched(program, expectation) -> bool:
     """Whether this expectation's quantity comes from the batched paraxial pass."""
     symbolic = program.symbolic is not None and \
         expectation.quantity in program.symbolic.expected_sensitivities
-    return expectation.request is None and expectation.quantity in QUANTITIES and not symbolic
+    # exact-ray and placement quantities (image shift, beam deviation) share the table of
+    # names but not the paraxial pass: they are taken unit by unit
+    return (expectation.request is None and expectation.quantity in QUANTITIES
+            and expectation.quantity not in RAY_QUANTITIES and not symbolic)
 
 
 def measure(program, batch, unit: Callable[[int], object], count: int) -> Measured:

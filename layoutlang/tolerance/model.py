@@ -7,10 +7,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 __all__ = ["ToleranceItem", "Compensator", "ToleranceSetup", "YieldRequest",
-           "UNIFORM", "NORMAL", "END_POINTS", "DEFAULT_SAMPLES", "DEFAULT_SEED",
+           "UNIFORM", "NORMAL", "END_POINTS", "PLACED", "DEFAULT_SAMPLES", "DEFAULT_SEED",
            "DEFAULT_SIGMAS"]
 
 UNIFORM, NORMAL, END_POINTS = "uniform", "normal", "end points"
+
+#: Tolerances on where a surface or element sits (engines/frames.py): a decenter (a length)
+#: and a tilt (an angle, radians), each about its vertex, the axis after it unmoved.
+PLACED = ("decenter", "tilt")
 
 #: Without `monte carlo N samples`: enough for a yield known to about ±1.4 % (95 %) at 90 %.
 DEFAULT_SAMPLES = 2000
@@ -46,10 +50,21 @@ class ToleranceItem:
     sigmas: float = DEFAULT_SIGMAS
     text: str = ""
     line: int = 0
+    #: decenter/tilt only: the last surface of the element (= position for one surface), its
+    #: name when the script named one ('through'), and the axis letter (along / about)
+    last: int = -1
+    through: str = ""
+    axis: str = ""
 
     @property
     def label(self) -> str:
-        return f"gap after {self.name}" if self.target == "gap" else f"{self.target} of {self.name}"
+        if self.target == "gap":
+            return f"gap after {self.name}"
+        if self.target in PLACED:
+            element = f" through {self.through}" if self.through else ""
+            way = "along" if self.target == "decenter" else "about"
+            return f"{self.target} of {self.name}{element} {way} {self.axis}"
+        return f"{self.target} of {self.name}"
 
 
 @dataclass(frozen=True)

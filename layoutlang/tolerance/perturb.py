@@ -18,8 +18,9 @@ import numpy as np
 
 from ..engines.firstorder import Unavailable, first_order
 from ..materials.dispersion import Dispersion
-from ..system import ImageSpec, System
-from .model import Compensator, ToleranceItem
+from ..surfaces.placement import RETURNS, Placement
+from ..system import GroupPlacement, ImageSpec, System
+from .model import PLACED, Compensator, ToleranceItem
 
 __all__ = ["perturbed", "compensated", "image_plane", "ShiftedModel", "BatchOnlyModel",
            "colour_perturbed"]
@@ -71,6 +72,7 @@ def perturbed(nominal: System, items: tuple[ToleranceItem, ...], deltas: np.ndar
     """The nominal layout with each item moved by its row of `deltas` ((items,) or (items, S))."""
     boundaries = list(nominal.boundaries)
     gaps = list(nominal.gaps)
+    groups = list(nominal.groups)
     media = {m.name: m for m in nominal.media}
     batch = deltas.ndim == 2
     primary = nominal.primary_wavelength
@@ -80,6 +82,8 @@ def perturbed(nominal: System, items: tuple[ToleranceItem, ...], deltas: np.ndar
         elif item.target in ("index", "abbe number"):
             media[item.name] = _moved_medium(media[item.name], item, delta, batch, primary,
                                              nominal)
+        elif item.target in PLACED:
+            groups.append(_placed(item, delta))
         else:
             b = boundaries[item.position]
             if item.target == "radius":
@@ -92,7 +96,23 @@ def perturbed(nominal: System, items: tuple[ToleranceItem, ...], deltas: np.ndar
                 b = replace(b, clear_diameter=_moved(b.clear_diameter, delta, item.relative))
             boundaries[item.position] = b
     return replace(nominal, boundaries=tuple(boundaries), gaps=tuple(gaps),
-                   media=tuple(media[m.name] for m in nominal.media))
+                   media=tuple(media[m.name] for m in nominal.media), groups=tuple(groups))
+
+
+def _placed(item: ToleranceItem, delta) -> GroupPlacement:
+    """A decenter or tilt tolerance as a placement of the surface or element about its first
+    vertex whose axis returns: the surfaces after (the sensor) stay where the design put them,
+    also after a fold mirror (its own placement still carries the axis). Applied after every
+    placement the script wrote before it (the frame they left), as a mounting error is."""
+    zero = 0.0 * delta
+    letters = "xyz"
+    if item.target == "decenter":
+        shift = tuple(delta if letters[k] == item.axis else zero for k in range(2))
+        placement = Placement(decenter=shift, tilt=(zero, zero, zero), axis=RETURNS)
+    else:
+        turn = tuple(delta if letters[k] == item.axis else zero for k in range(3))
+        placement = Placement(decenter=(zero, zero), tilt=turn, axis=RETURNS)
+    return GroupPlacement(item.position, item.last, placement, name=item.label)
 
 
 def _moved(value, delta, relative: bool):

@@ -9,6 +9,7 @@ from pathlib import Path
 from ..syntax import tree as t
 from ..syntax.parser import parse
 from ..testing import format_number
+from .model import PLACED
 
 __all__ = ["unit_script", "write_worst"]
 
@@ -66,7 +67,11 @@ def unit_script(program, text: str, deltas, unit: int, failures: int) -> tuple[s
     lines = text.split("\n")
     edits = []
     skipped = []
+    appended = []
     for item, delta in zip(program.tolerances.items, deltas):
+        if item.target in PLACED:  # a placement statement of its own, at the end
+            appended.append(_placement_line(item, float(delta), program.system.units))
+            continue
         node = nodes.get((item.target, item.name))
         value, written = _value(program, item, float(delta))
         number = node.operand if isinstance(node, t.Negate) else node
@@ -86,7 +91,25 @@ def unit_script(program, text: str, deltas, unit: int, failures: int) -> tuple[s
                                       for item, d in zip(program.tolerances.items, deltas))]
     if skipped:
         header.append("# not written as plain numbers (set them by hand): " + ", ".join(skipped))
+    if appended:
+        while lines and not lines[-1].strip():
+            lines.pop()
+        lines += ["# where this unit's surfaces sit (its decenter and tilt tolerances)"] + \
+            appended + [""]
     return "\n".join(header + lines), skipped
+
+
+def _placement_line(item, delta: float, units: str) -> str:
+    """A decenter or tilt of one unit as the script writes it: about the element (or the one
+    surface, as an element of one) with the axis returning, so the surfaces after stay."""
+    import math
+
+    last = item.through or item.name
+    if item.target == "decenter":
+        return (f"decenter {item.name} through {last} by {format(delta, '.10g')} {units} "
+                f"along {item.axis}, axis returns")
+    return (f"tilt {item.name} through {last} by {format(math.degrees(delta), '.10g')} deg "
+            f"about {item.axis}, axis returns")
 
 
 def write_worst(program, result, text: str, folder: Path) -> list[Path]:
