@@ -674,11 +674,9 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
         from ..engines import aberrations, realrays
     except ImportError:
         return "need the exact-ray engine"
-    s = aberrations.setup(system, results)
-    if isinstance(s, Unavailable):
-        if system.stop is None:
-            return "need a stop"
-        return "cannot be traced here: " + str(s).removeprefix("none: ")
+    s = exact_setup(system, results)
+    if isinstance(s, str):
+        return s
     geo, indices = s.geo, list(s.indices)
     image, where = results["image distance"], results["image position"]
     virtual_image = (float(where) if virtual and not isinstance(image, Unavailable) and image < 0
@@ -739,3 +737,15 @@ def _exact_rays(system: System, results: FirstOrder, z_start: float, z_end: floa
             paths.append(RayPath(_role(f, float(p)), "exact", tuple(zs[j]), tuple(ys[j]),
                                  virtual_z, virtual_y, f, float(p)))
     return paths, notes
+
+
+def exact_setup(system: System, results: FirstOrder):
+    """The exact-ray setup a drawing traces from, or why there is none (words)."""
+    from ..engines import aberrations
+
+    s = aberrations.setup(system, results)
+    if isinstance(s, Unavailable):
+        if system.stop is None:
+            return "need a stop"
+        return "cannot be traced here: " + str(s).removeprefix("none: ")
+    return s

@@ -212,13 +212,7 @@ def figure(system: System, hazards: tuple[str, ...] = (), exact: bool = True,
         ax.plot([z, z], [-h, h], color=ink, lw=1.1, zorder=4, ls=(0, (2, 2)) if virtual else "-")
         ax.annotate("virtual image" if virtual else "image", (z, -h), (0, -2),
                     textcoords="offset points", ha="center", va="top", fontsize=font, color=ink)
-    if section.object_plane is not None:
-        z, h = section.object_plane
-        if h:
-            ax.annotate("", (z, h), (z, 0), arrowprops={"arrowstyle": "-|>", "color": ink,
-                                                          "lw": 1.0})
-        ax.annotate("object", (z, 0), (0, -3), textcoords="offset points", ha="center",
-                    va="top", fontsize=font, color=ink)
+    draw_object(ax, section.object_plane, ink, font)
 
     handles = [_draw_beam(ax, section.beam)] if section.beam is not None else []
     handles += _draw_rays(ax, system, sets)
@@ -460,3 +454,15 @@ def _legend_order(label: str) -> float:
 
     match = re.match(r"\s*([0-9]+(?:\.[0-9]*)?)", label)
     return float(match.group(1)) if match else 0.0
+
+
+def draw_object(ax, object_plane, ink, font) -> None:
+    """The object as an upright arrow at its plane (nothing when the layout has none drawn)."""
+    if object_plane is None:
+        return
+    z, h = object_plane
+    if h:
+        ax.annotate("", (z, h), (z, 0), arrowprops={"arrowstyle": "-|>", "color": ink,
+                                                      "lw": 1.0})
+    ax.annotate("object", (z, 0), (0, -3), textcoords="offset points", ha="center",
+                va="top", fontsize=font, color=ink)

@@ -12,7 +12,7 @@ from typing import Any
 
 from ..system import IDEAL, MIRROR, System
 from .cross_section import CrossSection
-from .drawing import MAX_AXES_HEIGHT, STYLE, _draw_rays
+from .drawing import MAX_AXES_HEIGHT, STYLE, _draw_rays, draw_object
 
 __all__ = ["placed_figure"]
 
@@ -71,13 +71,7 @@ def placed_figure(system: System, sets: list[tuple[str, str, CrossSection]],
         low = min(view.image_line, key=lambda p: (p[1], p[0]))
         ax.annotate("image", low, (0, -3), textcoords="offset points", ha="center", va="top",
                     fontsize=font, color=ink)
-    if section.object_plane is not None:
-        z, h = section.object_plane
-        if h:
-            ax.annotate("", (z, h), (z, 0), arrowprops={"arrowstyle": "-|>", "color": ink,
-                                                          "lw": 1.0})
-        ax.annotate("object", (z, 0), (0, -3), textcoords="offset points", ha="center",
-                    va="top", fontsize=font, color=ink)
+    draw_object(ax, section.object_plane, ink, font)
     handles = _draw_rays(ax, system, sets)
     if handles:
         fig.legend(handles=handles, loc="upper left", fontsize=font, frameon=False,

@@ -20,7 +20,7 @@ import numpy as np
 from ..engines.firstorder import FirstOrder, Unavailable
 from ..engines.frames import Layout3D, layout3d
 from ..system import System
-from .cross_section import FIELDS, PUPILS, CrossSection, RayPath, _role
+from .cross_section import FIELDS, PUPILS, CrossSection, RayPath, _role, exact_setup
 
 __all__ = ["PlacedView", "placed_section", "drawing_plane"]
 
@@ -235,11 +235,9 @@ def _exact(system: System, results: FirstOrder, placed: Layout3D, image_frame, b
     the drawn stop and turn at the drawn mirrors), ended on the image plane."""
     from ..engines import aberrations, realrays
 
-    s = aberrations.setup(system, results)
-    if isinstance(s, Unavailable):
-        if system.stop is None:
-            return "need a stop"
-        return "cannot be traced here: " + str(s).removeprefix("none: ")
+    s = exact_setup(system, results)
+    if isinstance(s, str):
+        return s
     geo, indices = s.geo, list(s.indices)
     if geo.problem:
         return "cannot be traced here: " + geo.problem
